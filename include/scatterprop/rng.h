@@ -1,0 +1,80 @@
+/* scatterprop rng: PCG generators, block streams, uniform doubles.
+ *
+ * O'Neill, M.E. (2014). PCG: A family of simple fast space-efficient
+ * statistically good algorithms for random number generation. Technical
+ * report HMC-CS-2014-0905, Harvey Mudd College.
+ *
+ * Two members are provided, written from the paper:
+ *  - sp_pcg32: 64-bit LCG state, XSH-RR output, 32-bit results
+ *    (the paper's pcg32 / pcg_setseq_64_xsh_rr_32);
+ *  - sp_pcg64: 128-bit LCG state, XSL-RR output, 64-bit results
+ *    (pcg64 / pcg_setseq_128_xsl_rr_64), using unsigned __int128.
+ * Both take a stream selector (the LCG increment is 2*stream+1) and jump
+ * ahead in O(log n) (Brown, F.B. (1994). Random number generation with
+ * arbitrary strides. Trans. Am. Nucl. Soc. 71, 202-203). */
+#ifndef SP_RNG_H
+#define SP_RNG_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef struct {
+  uint64_t state;
+  uint64_t inc; /* always odd */
+} sp_pcg32;
+
+/* Seeds as the reference pcg32_srandom_r(initstate, initseq). */
+void sp_pcg32_seed(sp_pcg32 *g, uint64_t initstate, uint64_t initseq);
+uint32_t sp_pcg32_next(sp_pcg32 *g);
+/* Advances by delta steps (delta may be any value; steps wrap mod 2^64). */
+void sp_pcg32_advance(sp_pcg32 *g, uint64_t delta);
+
+typedef struct {
+  unsigned __int128 state;
+  unsigned __int128 inc; /* always odd */
+} sp_pcg64;
+
+/* Seeds as the reference pcg64_srandom_r(initstate, initseq); the 128-bit
+ * values are given as (hi, lo) halves. */
+void sp_pcg64_seed(sp_pcg64 *g, uint64_t initstate_hi, uint64_t initstate_lo,
+                   uint64_t initseq_hi, uint64_t initseq_lo);
+uint64_t sp_pcg64_next(sp_pcg64 *g);
+/* Advances by delta steps (delta given as (hi, lo), mod 2^128). */
+void sp_pcg64_advance(sp_pcg64 *g, uint64_t delta_hi, uint64_t delta_lo);
+
+/* The block stream rule (documented in docs/reproducibility.md).  The
+ * generator for (seed, block, sub) -- sub numbers the independent streams a
+ * block needs, such as one per model input -- is sp_pcg64 seeded with
+ *   initstate = (splitmix64(seed), splitmix64(seed ^ 0x9e3779b97f4a7c15))
+ *   initseq   = (seed, block * 2^16 + sub)
+ * so every (seed, block, sub) has its own LCG increment, and any block can be
+ * generated alone, by any thread or process.  block < 2^48, sub < 2^16. */
+void sp_rng_block_stream(sp_pcg64 *g, uint64_t seed, uint64_t block, uint32_t sub);
+
+/* SplitMix64 finaliser (Steele, Lea & Flood 2014, "Fast splittable
+ * pseudorandom number generators", OOPSLA '14), used to spread seeds. */
+uint64_t sp_splitmix64(uint64_t x);
+
+/* Uniform double in [0, 1) from the top 53 bits of one output. */
+double sp_rng_uniform(sp_pcg64 *g);
+/* Uniform double in the open interval (0, 1): (k + 0.5) / 2^53 for a 53-bit
+ * k, for inverse-CDF sampling where 0 and 1 must never occur. */
+double sp_rng_uniform_open(sp_pcg64 *g);
+/* Fills u[0..n) with sp_rng_uniform_open values (the block sampler's source). */
+void sp_rng_fill_open(sp_pcg64 *g, double *u, size_t n);
+/* Standard normal deviate by inversion of one open uniform with GSL's
+ * gsl_cdf_ugaussian_Pinv (Wichura 1988, AS 241, Applied Statistics 37(3),
+ * 477-484), so each deviate uses exactly one output of the stream. */
+double sp_rng_normal(sp_pcg64 *g);
+/* Uniform integer in [0, n) without modulo bias (Lemire 2019, "Fast random
+ * integer generation in an interval", ACM TOMACS 29(1), 3:1-3:12). n > 0. */
+uint64_t sp_rng_below(sp_pcg64 *g, uint64_t n);
+
+#ifdef __cplusplus
+}
+#endif
+#endif /* SP_RNG_H */
