@@ -5,15 +5,62 @@
 
 #include <gsl/gsl_errno.h>
 
-#include "scatterprop/core.h"
+#include "cli.h"
+
+static const cli_command commands[] = {
+  {"summary", "check an inspection CSV and describe its numeric columns",
+   cli_summary_run, cli_summary_help},
+};
+static const size_t ncommands = sizeof commands / sizeof commands[0];
+
+static void main_help(FILE *out)
+{
+  fprintf(out,
+          "Usage: scatterprop COMMAND [OPTIONS]\n"
+          "\n"
+          "From measured scatter to a predicted spread of performance: read\n"
+          "inspection CSVs, fit distributions, propagate them through a model.\n"
+          "\n"
+          "Commands:\n");
+  for (size_t i = 0; i < ncommands; i++)
+    fprintf(out, "  %-10s %s\n", commands[i].name, commands[i].summary);
+  fprintf(out,
+          "\n"
+          "Run 'scatterprop COMMAND --help' for a command's options.\n"
+          "Exit codes: 0 ok, 1 differs, 2 usage, 3 bad input data, 4 bad model,\n"
+          "5 numerical failure, 6 I/O error.\n"
+          "\n");
+  cli_print_caution(out);
+}
 
 int main(int argc, char **argv)
 {
   gsl_set_error_handler_off();
-  if (argc > 1 && strcmp(argv[1], "--version") == 0) {
-    printf("scatterprop %s\n", sp_version());
-    return 0;
+  if (argc < 2) {
+    main_help(stderr);
+    return CLI_USAGE;
   }
-  fprintf(stderr, "scatterprop: error: no command given\n");
-  return 2;
+  const char *cmd = argv[1];
+  if (strcmp(cmd, "--help") == 0 || strcmp(cmd, "-h") == 0 || strcmp(cmd, "help") == 0) {
+    main_help(stdout);
+    return CLI_OK;
+  }
+  if (strcmp(cmd, "--version") == 0) {
+    printf("scatterprop %s (git %s, %s, GSL %s)\n", sp_version(), sp_git_revision(),
+           sp_build_compiler(), sp_build_gsl_version());
+    return CLI_OK;
+  }
+  for (size_t i = 0; i < ncommands; i++) {
+    if (strcmp(cmd, commands[i].name) != 0) continue;
+    for (int a = 2; a < argc; a++) {
+      if (strcmp(argv[a], "--help") == 0 || strcmp(argv[a], "-h") == 0) {
+        commands[i].help(stdout);
+        return CLI_OK;
+      }
+    }
+    return commands[i].run(argc - 1, argv + 1);
+  }
+  fprintf(stderr, "scatterprop: error: unknown command '%s'\n"
+                  "  hint: run 'scatterprop --help' for the list of commands\n", cmd);
+  return CLI_USAGE;
 }

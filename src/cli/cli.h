@@ -1,0 +1,51 @@
+/* Shared pieces of the command-line tool (private to src/cli). */
+#ifndef SP_CLI_H
+#define SP_CLI_H
+
+#include <stdio.h>
+
+#include "scatterprop/core.h"
+
+/* Exit codes (STYLE.md); every command uses them. */
+enum { CLI_OK = 0, CLI_DIFFERS = 1, CLI_USAGE = 2, CLI_DATA = 3, CLI_MODEL = 4,
+       CLI_NUMERIC = 5, CLI_IO = 6 };
+
+/* A command: name, one-line summary, entry point (argv[0] is the command
+ * name), and its --help text printer. */
+typedef struct {
+  const char *name;
+  const char *summary;
+  int (*run)(int argc, char **argv);
+  void (*help)(FILE *out);
+} cli_command;
+
+/* Prints "scatterprop: error: file:line:col: msg" and the hint (if any) to
+ * stderr and returns the exit code for err->code. */
+int cli_report(const sp_error *err);
+/* Prints a usage error with a pointer to --help and returns CLI_USAGE. */
+int cli_usage(const char *command, const char *fmt, ...)
+    __attribute__((format(printf, 2, 3)));
+
+/* Option matching for a hand-written argument loop.
+ *   if (cli_opt_value(argc, argv, &i, "--column", &val, &rc)) { ... }
+ * matches "--column VALUE" and "--column=VALUE"; advances *i past a
+ * separate value.  A missing value sets *rc to CLI_USAGE (with a message)
+ * and returns -1.  Returns 1 on a match, 0 otherwise. */
+int cli_opt_value(const char *command, int argc, char **argv, int *i,
+                  const char *name, const char **value, int *rc);
+/* Matches a flag without a value ("--json"). */
+int cli_opt_flag(char **argv, int i, const char *name);
+/* Strict numeric option values; on failure print a usage error, set *rc. */
+int cli_parse_double(const char *command, const char *opt, const char *text,
+                     double *out, int *rc);
+int cli_parse_u64(const char *command, const char *opt, const char *text,
+                  unsigned long long *out, int *rc);
+
+/* Prints the caution paragraph, wrapped, to out. */
+void cli_print_caution(FILE *out);
+
+/* Commands (one file each under src/cli/). */
+int cli_summary_run(int argc, char **argv);
+void cli_summary_help(FILE *out);
+
+#endif
