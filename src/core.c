@@ -28,6 +28,9 @@ void sp_error_clear(sp_error *err)
 
 static sp_status fail_v(sp_error *err, sp_status code, const char *file,
                         long line, long col, const char *fmt, va_list ap)
+    __attribute__((format(printf, 6, 0)));
+static sp_status fail_v(sp_error *err, sp_status code, const char *file,
+                        long line, long col, const char *fmt, va_list ap)
 {
   if (!err) return code;
   err->code = code;
