@@ -86,6 +86,7 @@ static int settle_kids(parser *p, sp_model_node *n, sp_model_node **kids,
                        const char *ops, const size_t *op_off, size_t nk)
 {
   n->nkids = nk;
+  if (nk == 0) return 0;
   n->kids = sp_model_alloc(p->c, nk * sizeof *n->kids);
   if (!n->kids) return -1;
   memcpy(n->kids, kids, nk * sizeof *kids);
