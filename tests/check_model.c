@@ -639,6 +639,85 @@ START_TEST(test_distribution_parameters)
 }
 END_TEST
 
+START_TEST(test_every_family_as_input)
+{
+  /* Each family of the registry that may be a model input, spelled with
+   * positional parameters in its documented order (dist.h); values chosen
+   * inside every family's domain. */
+  static const struct {
+    const char *line;
+    size_t np;
+    double theta[4];
+  } want[] = {
+      {"normal(1, 2)", 2, {1, 2}},
+      {"lognormal(0.5, 0.25)", 2, {0.5, 0.25}},
+      {"weibull(8, 120)", 2, {8, 120}},
+      {"weibull3(2, 3, 1)", 3, {2, 3, 1}},
+      {"gamma(2, 3)", 2, {2, 3}},
+      {"exponential(0.5)", 1, {0.5}},
+      {"exponential2(0.5, 1)", 2, {0.5, 1}},
+      {"gumbel_max(1, 2)", 2, {1, 2}},
+      {"gumbel_min(1, 2)", 2, {1, 2}},
+      {"logistic(1, 2)", 2, {1, 2}},
+      {"loglogistic(3, 2)", 2, {3, 2}},
+      {"uniform(1, 2)", 2, {1, 2}},
+      {"truncnormal(1, 2, 0, 5)", 4, {1, 2, 0, 5}},
+      {"triangular(1, 2, 4)", 3, {1, 2, 4}},
+      {"beta(2, 3, 1, 4)", 4, {2, 3, 1, 4}},
+  };
+  size_t nfam = sizeof want / sizeof *want;
+  char text[4096];
+  size_t len = 0;
+  for (size_t k = 0; k < nfam; k++)
+    len += (size_t)snprintf(text + len, sizeof text - len, "input x%zu [mm] ~ %s\n",
+                            k, want[k].line);
+  snprintf(text + len, sizeof text - len, "output y = x0\n");
+  sp_model *m = compile_ok("fam.spm", text);
+  ck_assert_uint_eq(sp_model_input_count(m), nfam);
+  for (size_t k = 0; k < nfam; k++) {
+    const sp_model_input *in = sp_model_input_at(m, k);
+    ck_assert_ptr_nonnull(in->family);
+    ck_assert_uint_eq(in->family->nparam, want[k].np);
+    for (size_t j = 0; j < want[k].np; j++)
+      ck_assert_msg(in->theta[j] == want[k].theta[j], "%s: theta[%zu] = %g",
+                    want[k].line, j, in->theta[j]);
+  }
+  /* Every family that propagates is listed above. */
+  size_t nprop = 0;
+  for (size_t i = 0; i < sp_family_count(); i++)
+    if (sp_family_at(i)->flags & SP_FAMILY_PROPAGATE) nprop++;
+  ck_assert_uint_eq(nprop, nfam);
+  sp_model_free(m);
+}
+END_TEST
+
+START_TEST(test_limit_values_converted)
+{
+  sp_model *m = compile_ok("l.spm",
+                           "input F [N] ~ normal(100, 1)\n"
+                           "input A [mm2] ~ normal(4, 0.1)\n"
+                           "const smax = 0.9 [GPa]\n"
+                           "output s [MPa] = F / A\n"
+                           "output f [kN] = F\n"
+                           "limit s < 0.88 [GPa]\n"
+                           "limit s > 2\n"
+                           "limit f > 50 [N]\n"
+                           "limit f < smax * 1 [m2]\n");
+  ck_assert_uint_eq(sp_model_limit_count(m), 4);
+  /* SI: 0.88 GPa = 880 MPa; a pure number is in the output's unit; 50 N
+   * = 0.05 kN; 0.9 GPa * 1 m^2 = 9e8 N = 9e5 kN. */
+  ASSERT_REL(sp_model_limit_at(m, 0)->value, 880.0, EPS);
+  ck_assert_int_eq(sp_model_limit_at(m, 0)->dir, SP_MODEL_LIMIT_BELOW);
+  ck_assert(sp_model_limit_at(m, 1)->value == 2.0);
+  ck_assert_int_eq(sp_model_limit_at(m, 1)->dir, SP_MODEL_LIMIT_ABOVE);
+  ck_assert_uint_eq(sp_model_limit_at(m, 2)->output, 1);
+  ASSERT_REL(sp_model_limit_at(m, 2)->value, 0.05, EPS);
+  ASSERT_REL(sp_model_limit_at(m, 3)->value, 9e5, EPS);
+  ck_assert_int_eq(sp_model_limit_at(m, 3)->line, 9);
+  sp_model_free(m);
+}
+END_TEST
+
 START_TEST(test_set_input_dist_errors)
 {
   sp_model *m = compile_ok("s.spm", "input x [mm] ~ fit(\"/abs/x.json\")\noutput y = x\n");
@@ -1024,6 +1103,8 @@ int main(void)
   tcase_add_test(tc, test_output_factor_folded_into_last_multiply);
   tcase_add_test(tc, test_distribution_parameters);
   tcase_add_test(tc, test_set_input_dist_errors);
+  tcase_add_test(tc, test_every_family_as_input);
+  tcase_add_test(tc, test_limit_values_converted);
   tcase_add_test(tc, test_workspace_errors);
   tcase_add_test(tc, test_load_file);
   suite_add_tcase(s, tc);
