@@ -27,11 +27,14 @@
 #include <string.h>
 
 /* Integer exponents up to this magnitude are expanded into
- * multiplications.  Binary powering with k multiplications has a relative
- * error below about k * DBL_EPSILON / 2 per multiplication level (each
- * squaring doubles the relative error of its operand and adds a
- * rounding), so x^4 is within 1.5 ulps; larger exponents go to pow(),
- * which is within 1 ulp in glibc. */
+ * multiplications by the left-to-right binary method (x^k = (x^(k/2))^2,
+ * times x when k is odd: Knuth, D.E. (1997). The Art of Computer
+ * Programming, vol. 2, Seminumerical Algorithms, 3rd ed., section 4.6.3;
+ * from memory).  With
+ * u = DBL_EPSILON / 2, x*x is within u (relative); each further squaring
+ * doubles its operand's relative error and adds u, each multiplication by
+ * x adds u: x^3 is within 2u and x^4 within 3u (1.5 ulps).  Larger
+ * exponents go to pow(), which glibc documents as within 1 ulp. */
 #define POW_EXPAND_MAX 4
 
 typedef struct {
@@ -316,7 +319,11 @@ static int allocate(gen *g)
     int nr = reads(&g->ins[k], r);
     for (int j = 0; j < nr; j++) last_use[r[j]] = k;
   }
-  /* 3. Linear scan. */
+  /* 3. Linear scan over the straight-line code (Poletto, M., Sarkar, V.
+   * (1999). Linear scan register allocation. ACM Transactions on
+   * Programming Languages and Systems 21(5), 895-913; from memory): a
+   * lifetime runs from the defining instruction to the last reader, and
+   * never spills, since the workspace grows to whatever is needed. */
   size_t nfree = 0, ntemps = 0;
   for (size_t k = 0; k < g->n; k++) {
     sp_model_ins *i = &g->ins[k];

@@ -321,8 +321,11 @@ static const char *const keywords[] = {"input", "const", "let", "output",
 
 static size_t name_hash(const char *s, size_t n, size_t size)
 {
-  /* FNV-1a, 64-bit: Fowler, G., Noll, L.C., Vo, K.-P. (1991), the FNV hash
-   * (IETF draft-eastlake-fnv, "The FNV Non-Cryptographic Hash Algorithm"). */
+  /* FNV-1a, 64-bit, with its published offset basis and prime: Fowler,
+   * G., Noll, L.C., Vo, K.-P., Eastlake, D., Hansen, T. The FNV
+   * Non-Cryptographic Hash Algorithm. IETF Internet-Draft
+   * draft-eastlake-fnv (from memory; the hash dates from Fowler, Noll and
+   * Vo, 1991). */
   uint64_t h = 14695981039346656037u;
   for (size_t i = 0; i < n; i++) {
     h ^= (unsigned char)s[i];

@@ -1045,11 +1045,15 @@ END_TEST
 
 START_TEST(test_load_file)
 {
-  char path[] = "/tmp/sp_model_testXXXXXX";
-  int fd = mkstemp(path);
-  ck_assert_int_ge(fd, 0);
-  ck_assert(write(fd, spring_text, strlen(spring_text)) == (ssize_t)strlen(spring_text));
-  close(fd);
+  char path[512];
+  snprintf(path, sizeof path, "%s/model_load_test_%ld.spm", SP_BINARY_DIR,
+           (long)getpid());
+  FILE *f = fopen(path, "wb");
+  ck_assert_ptr_nonnull(f);
+  ck_assert_uint_eq(fwrite(spring_text, 1, strlen(spring_text), f), strlen(spring_text));
+  fclose(f);
+  char want_fit[600];
+  snprintf(want_fit, sizeof want_fit, "%s/fits/wire_d.json", SP_BINARY_DIR);
   sp_model *m = NULL;
   sp_model_diags d;
   sp_model_diags_init(&d);
@@ -1057,7 +1061,7 @@ START_TEST(test_load_file)
   ck_assert_int_eq(sp_model_load(path, &m, &d, &err), SP_OK);
   ck_assert_str_eq(sp_model_path(m), path);
   /* fit() paths resolve against the file's folder. */
-  ck_assert_str_eq(sp_model_input_at(m, 0)->fit_path_resolved, "/tmp/fits/wire_d.json");
+  ck_assert_str_eq(sp_model_input_at(m, 0)->fit_path_resolved, want_fit);
   char hex[SP_SHA256_HEX_LEN];
   sp_sha256_buffer(spring_text, strlen(spring_text), hex);
   ck_assert_str_eq(sp_model_sha256(m), hex);
