@@ -655,8 +655,8 @@ static int param_class(const char *pname)
   return PARAM_PURE;
 }
 
-/* The value of argument a for parameter pname, in the input's unit u (NULL
- * when the input's unit had an error); -1 after reporting. */
+/* The value of argument a for parameter pname, in the input's unit u; -1
+ * after reporting. */
 static int param_value(sp_model_ctx *c, const sp_model_stmt *st,
                        const sp_model_arg *a, const char *fam, const char *pname,
                        const sp_unit *u, double *out)
@@ -664,7 +664,7 @@ static int param_value(sp_model_ctx *c, const sp_model_stmt *st,
   const sp_model_node *x = a->expr;
   int cls = param_class(pname);
   double f;
-  if (cls == PARAM_PURE || !u) {
+  if (cls == PARAM_PURE) {
     if (factor_to_one(c, x->unit, &f) != 0) {
       sp_model_error(c, st->line, x->off,
                      "parameter '%s' of %s is a pure number, got %s", pname,
@@ -858,7 +858,9 @@ static void type_input(sp_model_ctx *c, sp_model_stmt *st)
         continue;
       }
       given_off[idx] = a->off;
-      if (a->expr->bad) continue;
+      /* Without a valid unit for the input there is nothing to convert
+       * into; its error is already reported. */
+      if (a->expr->bad || !u) continue;
       if (param_value(c, st, a, fam->name, fam->param_names[idx], u,
                       &theta[idx]) != 0)
         ok = 0;
