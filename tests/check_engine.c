@@ -508,16 +508,36 @@ START_TEST(test_sum_of_normals)
 }
 END_TEST
 
+/* Irwin-Hall CDF of the sum of 4 R(0, 1): (1/24) sum_{j <= s} (-1)^j C(4, j)
+ * (s - j)^4 (closed form; Irwin, J.O. (1927). Biometrika 19, 225-239). */
+static double irwin_hall4_cdf(double s)
+{
+  static const double c4[5] = {1, 4, 6, 4, 1};
+  if (s <= 0) return 0;
+  if (s >= 4) return 1;
+  double t = 0;
+  for (int j = 0; j <= (int)floor(s); j++) t += (j % 2 ? -1 : 1) * c4[j] * pow(s - j, 4);
+  return t / 24;
+}
+
 START_TEST(test_jcgm_additive)
 {
   /* JCGM 101:2008 9.2: Y = X1 + X2 + X3 + X4.
    * 9.2.2, Xi ~ N(0, 1): published (from memory) for M = 10^6: y = 0.00,
-   * u(y) = 2.00, shortest 95% interval [-3.92, 3.92]; exactly y = 0,
-   * u = 2, +-1.959964 x 2 = +-3.919928 (closed form).
+   * u(y) = 2.00, 95% interval [-3.92, 3.92]; exactly y = 0, u = 2,
+   * +-1.959964 x 2 = +-3.919928 (closed form).
    * 9.2.3, Xi rectangular of the same variance, R(-sqrt 3, sqrt 3):
    * published (from memory) about +-3.88; exactly Y = 2 sqrt(3) (S - 2) with
    * S Irwin-Hall of order 4, whose upper tail is (4 - s)^4 / 24, so the
-   * 97.5% point is 2 sqrt(3) (2 - 0.6^(1/4)) = 3.8794067 (closed form). */
+   * 97.5% point is 2 sqrt(3) (2 - 0.6^(1/4)) = 3.8794067 (closed form).
+   * Y is symmetric, so the probabilistically symmetric interval is the
+   * shortest one (JCGM 101 5.3.4): the published ends are compared with
+   * the symmetric interval, whose ends are sample quantiles (standard error
+   * quantile_se).  The estimated shortest interval is checked through its
+   * width (standard error sqrt(2) quantile_se: the two ends are nearly
+   * uncorrelated order statistics) and its exact probability content;
+   * its location along the flat minimum of the width is too noisy for a
+   * 5 sigma check of the ends. */
   double c[] = {4, 1, 1, 1, 1};
   model_ctx mc = {m_linear, c};
   sp_evaluator ev = evaluator(&mc, 4, 1);
@@ -544,11 +564,18 @@ START_TEST(test_jcgm_additive)
      * (normal), -0.3 (sum of four uniforms: -1.2 / 4) */
     ASSERT_ABS(y->sd, 2.0, 5 * 2.0 * sqrt((rect ? 1.7 : 2.0) / (4.0 * N)));
     ASSERT_ABS(y->sd, 2.00, 0.005 + 5 * 2.0 * sqrt(2.0 / (4.0 * N))); /* published, 3 digits */
-    /* the distribution is symmetric: both intervals estimate +-exact */
     ASSERT_ABS(y->sym_hi, exact, 5 * se);
     ASSERT_ABS(y->sym_lo, -exact, 5 * se);
-    ASSERT_ABS(y->short_hi, published, 0.005 + 5 * se);
-    ASSERT_ABS(y->short_lo, -published, 0.005 + 5 * se);
+    ASSERT_ABS(y->sym_hi, published, 0.005 + 5 * se);
+    ASSERT_ABS(y->sym_lo, -published, 0.005 + 5 * se);
+    double width = y->short_hi - y->short_lo;
+    ASSERT_ABS(width, 2 * exact, 5 * sqrt(2.0) * se);
+    ASSERT_ABS(width, 2 * published, 0.01 + 5 * sqrt(2.0) * se);
+    ck_assert(width <= y->sym_hi - y->sym_lo);
+    double content = rect ? irwin_hall4_cdf(y->short_hi / (2 * sqrt(3.0)) + 2)
+                                - irwin_hall4_cdf(y->short_lo / (2 * sqrt(3.0)) + 2)
+                          : gsl_cdf_gaussian_P(y->short_hi, 2.0) - gsl_cdf_gaussian_P(y->short_lo, 2.0);
+    ASSERT_ABS(content, 0.95, 5 * sqrt(0.95 * 0.05 / N));
     ASSERT_ABS(y->kurtosis, rect ? -0.3 : 0.0, 5 * sqrt(24.0 / N));
     sp_engine_result_free(&r);
   }
@@ -598,13 +625,14 @@ START_TEST(test_jcgm_mass)
   ASSERT_ABS(y->sd, u, usd);
   ASSERT_ABS(y->sd, 0.0754, 0.00005 + usd); /* published */
   ASSERT_ABS(y->kurtosis, 0.0, 0.3);        /* near-normal, as argued above */
-  /* Interval ends: the density there is close to the normal's phi(1.96)/u =
-   * 0.77 per mg; with a 40% margin for the departure from normality,
-   * 5 sigma <= 5 sqrt(0.025 0.975 / N) / (0.6 x 0.77) = 0.0017 mg;
-   * published to 4 digits. */
-  double iv = 0.00005 + 5 * quantile_se(0.025, N, 0.6 * gsl_ran_ugaussian_pdf(1.96) / u);
-  ASSERT_ABS(y->short_lo, 1.0834, iv);
-  ASSERT_ABS(y->short_hi, 1.3825, iv);
+  /* The shortest interval, through its width (published 1.3825 - 1.0834 =
+   * 0.2991 mg; see test_jcgm_additive for why the width): the density at
+   * the ends is close to the normal's phi(1.96)/u = 0.77 per mg; with a 40%
+   * margin for the departure from normality an end's standard error is
+   * below sqrt(0.025 0.975 / N) / (0.6 x 0.77), the width's sqrt(2) times
+   * that; the two published ends are rounded to 4 digits. */
+  double se = quantile_se(0.025, N, 0.6 * gsl_ran_ugaussian_pdf(1.96) / u);
+  ASSERT_ABS(y->short_hi - y->short_lo, 1.3825 - 1.0834, 0.0001 + 5 * sqrt(2.0) * se);
   sp_engine_result_free(&r);
 }
 END_TEST
