@@ -244,12 +244,12 @@ uint64_t engine_run_bytes(const sp_engine_options *opt, size_t k, size_t nout,
   uint64_t b = 0;
   b += N * nout * 8;                                 /* one double per sample per output */
   if (opt->keep_samples) b += N * nout * 8;          /* the copy in sample order */
-  if (opt->rank_sensitivity) b += N * k * 8 + N * 40; /* inputs; ranks and sort scratch */
+  if (opt->rank_sensitivity) b += N * k * 8 + N * 52; /* inputs; ranks and sort scratch */
   b += (uint64_t)threads * (2 * B * k * 8 + (k + nout) * 16); /* block inputs, scratch */
   b += nblocks * (nout * sizeof(engine_moments) + 1);
   uint64_t par = (uint64_t)threads < nout ? (uint64_t)threads : nout;
   uint64_t tail = opt->coverage < 0.5 ? N : (uint64_t)((1.0 - opt->coverage) * (double)N) + 1;
-  b += par * 16 * tail;                              /* sorting the tails */
+  b += par * (32 * tail + 5 * 8 * 65536);           /* tails, their sort, bins */
   if (opt->method == SP_ENGINE_SOBOL) {
     uint64_t G = opt->adaptive_digits ? engine_adaptive_batch(opt->coverage, opt->block)
                                       : N / (opt->replicates ? opt->replicates : 1);

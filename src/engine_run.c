@@ -11,6 +11,7 @@
 #include "engine_internal.h"
 
 #include <math.h>
+#include <omp.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -265,6 +266,7 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
 
   uint64_t samples = 0;
   int cancelled = 0, stable = 0;
+  const double t0 = omp_get_wtime();
   sp_engine_output *outs = calloc(nout, sizeof *outs);
   if (!outs) {
     st = sp_fail(err, SP_ENOMEM, "cannot allocate the results");
@@ -325,6 +327,7 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
   }
 
   /* ---- summaries ---------------------------------------------------------- */
+  const double t1 = omp_get_wtime();
   res->status = cancelled ? SP_ENGINE_CANCELLED
                           : (adaptive && !stable ? SP_ENGINE_NOT_STABILISED : SP_ENGINE_COMPLETE);
   res->method = opt->method;
@@ -427,6 +430,10 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
   }
   if (failed_out >= 0)
     st = sp_fail(err, SP_ENOMEM, "cannot allocate the sort scratch of output %d", failed_out + 1);
+  if (opt->timing) {
+    opt->timing->blocks = t1 - t0;
+    opt->timing->summary = omp_get_wtime() - t1;
+  }
 
 done:
   free(u_all);

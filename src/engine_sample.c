@@ -232,16 +232,6 @@ void engine_design_uniform(const engine_design *d, size_t dd, uint64_t b,
 
 /* ---- block sampler ---------------------------------------------------------- */
 
-/* Inversion from open uniforms, the rule of sp_family_from_uniform: for
- * u > 1/2, 1 - u is exact (Sterbenz) and the upper quantile keeps the tail's
- * digits. */
-static void invert_uniform(const sp_family *f, const double *theta,
-                           const double *u, double *out, size_t n)
-{
-  for (size_t s = 0; s < n; s++)
-    out[s] = u[s] > 0.5 ? f->quantile_Q(theta, 1.0 - u[s]) : f->quantile_P(theta, u[s]);
-}
-
 /* Inversion from normal scores: P = Phi(z) for z <= 0 and Q = Phi(-z)
  * otherwise, so neither tail loses digits to 1 - P.  DBL_MIN keeps an
  * (astronomically unlikely) underflow of Phi away from the quantile's pole. */
@@ -275,7 +265,7 @@ void engine_sample_block(const engine_inputs *x, const engine_design *d,
     double *u = z + i * n;
     engine_design_uniform(d, doff + i, b, k0, n, u);
     if (!cop) {
-      invert_uniform(in->fam, in->theta, u, out[i], n);
+      sp_family_from_uniform(in->fam, in->theta, u, out[i], n);
     } else {
       for (size_t s = 0; s < n; s++) u[s] = gsl_cdf_ugaussian_Pinv(u[s]);
     }

@@ -184,6 +184,204 @@ static void multiselect(double *y, size_t lo, size_t hi, const size_t *t, size_t
   }
 }
 
+/* ---- order statistics by bracketing --------------------------------------
+ * For large m the order statistics are found without rearranging y: a
+ * pseudorandom subsample of BRACKET_SUB values (positions from a fixed
+ * stream, so the work is reproducible) gives a value a above the (M - q)-th
+ * smallest and b below the (M - q)-th largest with overwhelming
+ * probability (6 binomial standard deviations of subsample rank, plus 2).
+ * Pass 1 counts the values below a, above b, and in each of BRACKET_BINS
+ * equal bins of [a, b]; pass 2 copies the two tails (which the shortest
+ * interval needs sorted anyway) and the few bins that hold a wanted order
+ * statistic.  The tails are radix-sorted, the wanted bins sorted, and the
+ * order statistics read off by their ranks: exact, in two streaming passes.
+ * If a bracket misses (counts below or above fall short, as heavily tied
+ * data can make them), the selection path is taken instead.  Bracketing
+ * from a subsample is the idea of Floyd, R.W. & Rivest, R.L. (1975).
+ * Expected time bounds for selection. Communications of the ACM 18(3),
+ * 165-172, applied here to many ranks at once. */
+#define BRACKET_MIN 131072u   /* below this, selection is as fast */
+#define BRACKET_SUB 65536u    /* subsample size */
+#define BRACKET_BINS 65536u   /* bins of the middle range */
+#define BRACKET_SIGMAS 6.0    /* bracket half-width in rank standard deviations */
+
+static int cmp_dbl(const void *pa, const void *pb)
+{
+  double a = *(const double *)pa, b = *(const double *)pb;
+  return (a > b) - (a < b);
+}
+
+typedef struct {
+  size_t m, nlow, nhigh;   /* values below a, above b */
+  const double *low, *high; /* sorted */
+  const size_t *cum;       /* cum[b]: values below bin b (from a) */
+  const size_t *off;       /* start of bin b's sorted copy in mid */
+  const double *mid;
+} bracket;
+
+static double bracket_get(const bracket *br, size_t t)
+{
+  if (t < br->nlow) return br->low[t];
+  if (t >= br->m - br->nhigh) return br->high[t - (br->m - br->nhigh)];
+  /* the bin holding rank t: the last b with cum[b] <= t */
+  size_t lo = 0, hi = BRACKET_BINS;
+  while (hi - lo > 1) {
+    size_t md = lo + (hi - lo) / 2;
+    if (br->cum[md] <= t) lo = md;
+    else hi = md;
+  }
+  return br->mid[br->off[lo] + (t - br->cum[lo])];
+}
+
+static size_t bin_of(double v, double a, double scale)
+{
+  size_t b = (size_t)((v - a) * scale);
+  return b < BRACKET_BINS ? b : BRACKET_BINS - 1;
+}
+
+/* Returns 1 and fills pct and o when the bracketing succeeds, 0 to fall back,
+ * -1 when memory runs out. */
+static int order_stats_bracket(const double *y, size_t m, const double *p, size_t np,
+                               size_t qq, size_t tail, int have_sym, size_t s_lo,
+                               size_t s_hi, double *pct, sp_engine_output *o)
+{
+  int ret = -1;
+  double *sub = malloc(BRACKET_SUB * sizeof *sub);
+  uint64_t *tmp = malloc(2 * BRACKET_SUB * sizeof *tmp);
+  size_t *cnt = calloc(BRACKET_BINS, sizeof *cnt);
+  size_t *cum = malloc(BRACKET_BINS * sizeof *cum);
+  size_t *off = malloc(BRACKET_BINS * sizeof *off);
+  size_t *fill = calloc(BRACKET_BINS, sizeof *fill);
+  unsigned char *need = calloc(BRACKET_BINS, 1);
+  double *low = NULL, *high = NULL, *mid = NULL;
+  uint64_t *stmp = NULL;
+  if (!sub || !tmp || !cnt || !cum || !off || !fill || !need) goto out;
+
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, m, 0, 0); /* positions depend on m only */
+  for (size_t i = 0; i < BRACKET_SUB; i++) sub[i] = y[sp_rng_below(&g, m)];
+  engine_sort_doubles(sub, BRACKET_SUB, tmp);
+  const double ms = BRACKET_SUB, pt = (double)tail / (double)m;
+  const double dev = BRACKET_SIGMAS * sqrt(ms * pt * (1.0 - pt)) + 2.0;
+  double ra = ceil(pt * ms + dev), rb = floor((double)qq / (double)m * ms - dev);
+  ret = 0;
+  if (!(ra < rb && rb < ms && ra >= 0)) goto out;
+  const double a = sub[(size_t)ra], b = sub[(size_t)rb];
+  if (!(a < b)) goto out;
+  const double scale = (double)BRACKET_BINS / (b - a);
+
+  /* pass 1: counts */
+  size_t nlow = 0, nhigh = 0;
+  for (size_t i = 0; i < m; i++) {
+    double v = y[i];
+    if (v < a) nlow++;
+    else if (v > b) nhigh++;
+    else cnt[bin_of(v, a, scale)]++;
+  }
+  if (nlow < tail || nhigh < tail) goto out;
+  size_t c = nlow;
+  for (size_t k = 0; k < BRACKET_BINS; k++) {
+    cum[k] = c;
+    c += cnt[k];
+  }
+  /* the wanted ranks in the middle */
+  for (size_t i = 0; i < np + 1; i++) {
+    size_t cand[2];
+    size_t nc = 0;
+    if (i < np) {
+      size_t j;
+      double gg;
+      engine_hf7_position(m, p[i], &j, &gg);
+      cand[nc++] = j;
+      if (gg > 0.0) cand[nc++] = j + 1;
+    } else if (have_sym) {
+      cand[nc++] = s_lo;
+      cand[nc++] = s_hi;
+    }
+    for (size_t q = 0; q < nc; q++) {
+      size_t t = cand[q];
+      if (t < nlow || t >= m - nhigh) continue;
+      size_t lo = 0, hi = BRACKET_BINS;
+      while (hi - lo > 1) {
+        size_t md = lo + (hi - lo) / 2;
+        if (cum[md] <= t) lo = md;
+        else hi = md;
+      }
+      need[lo] = 1;
+    }
+  }
+  size_t nmid = 0;
+  for (size_t k = 0; k < BRACKET_BINS; k++) {
+    off[k] = nmid;
+    if (need[k]) nmid += cnt[k];
+  }
+  ret = -1;
+  low = malloc(nlow * sizeof *low);
+  high = malloc(nhigh * sizeof *high);
+  mid = malloc((nmid ? nmid : 1) * sizeof *mid);
+  size_t big = nlow > nhigh ? nlow : nhigh;
+  stmp = malloc(2 * big * sizeof *stmp);
+  if (!low || !high || !mid || !stmp) goto out;
+
+  /* pass 2: copies */
+  size_t il = 0, ih = 0;
+  for (size_t i = 0; i < m; i++) {
+    double v = y[i];
+    if (v < a) {
+      low[il++] = v;
+    } else if (v > b) {
+      high[ih++] = v;
+    } else {
+      size_t k = bin_of(v, a, scale);
+      if (need[k]) mid[off[k] + fill[k]++] = v;
+    }
+  }
+  engine_sort_doubles(low, nlow, stmp);
+  engine_sort_doubles(high, nhigh, stmp);
+  for (size_t k = 0; k < BRACKET_BINS; k++)
+    if (need[k] && cnt[k] > 1) qsort(mid + off[k], cnt[k], sizeof *mid, cmp_dbl);
+
+  bracket br = {m, nlow, nhigh, low, high, cum, off, mid};
+  /* shortest interval: y_(r) = low[r], y_(r+q) from high */
+  size_t best = 0;
+  double w = INFINITY;
+  const size_t base = m - nhigh;
+  for (size_t r = 0; r < tail; r++) {
+    double d = high[r + qq - base] - low[r];
+    if (d < w) {
+      w = d;
+      best = r;
+    }
+  }
+  o->short_lo = low[best];
+  o->short_hi = high[best + qq - base];
+  for (size_t i = 0; i < np; i++) {
+    size_t j;
+    double gg;
+    engine_hf7_position(m, p[i], &j, &gg);
+    double yj = bracket_get(&br, j);
+    pct[i] = gg > 0.0 ? engine_hf7_lerp(yj, bracket_get(&br, j + 1), gg) : yj;
+  }
+  if (have_sym) {
+    o->sym_lo = bracket_get(&br, s_lo);
+    o->sym_hi = bracket_get(&br, s_hi);
+  }
+  ret = 1;
+out:
+  free(sub);
+  free(tmp);
+  free(cnt);
+  free(cum);
+  free(off);
+  free(fill);
+  free(need);
+  free(low);
+  free(high);
+  free(mid);
+  free(stmp);
+  return ret;
+}
+
 sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
                              double cov, double *pct, sp_engine_output *o,
                              sp_error *err)
@@ -200,6 +398,11 @@ sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
   size_t tail = qq < m ? m - qq : 0; /* M - q */
   size_t s_lo = 0, s_hi = 0;
   int have_sym = sp_engine_symmetric_index(m, cov, &s_lo, &s_hi);
+  if (m >= BRACKET_MIN && qq >= 1 && tail >= 1 && tail <= qq) {
+    int r = order_stats_bracket(y, m, p, np, qq, tail, have_sym, s_lo, s_hi, pct, o);
+    if (r < 0) return sp_fail(err, SP_ENOMEM, "cannot allocate the order-statistic scratch");
+    if (r > 0) return SP_OK;
+  }
   size_t low_end = 0, high_begin = m; /* sorted ranges [0, low_end), [high_begin, m) */
   uint64_t *tmp = NULL;
   if (qq >= 1 && tail >= 1) {

@@ -175,7 +175,7 @@ static void m_mass(const double *const *in, size_t n, double *const *out, const 
 }
 
 /* Y1 = X1 + X2 with NaN when X1 > c[0], +inf when X2 > c[1], -inf when
- * X2 < -c[1]; Y2 = X1 - X2 */
+ * X2 < -c[1]; Y2 = X1 - X2, rounded to multiples of 1/2 when c[2] != 0 */
 static void m_nan(const double *const *in, size_t n, double *const *out, const double *c)
 {
   for (size_t s = 0; s < n; s++) {
@@ -185,7 +185,7 @@ static void m_nan(const double *const *in, size_t n, double *const *out, const d
     else if (b > c[1]) y = INFINITY;
     else if (b < -c[1]) y = -INFINITY;
     out[0][s] = y;
-    out[1][s] = a - b;
+    out[1][s] = c[2] != 0.0 ? 0.5 * nearbyint(2.0 * (a - b)) : a - b;
   }
 }
 
@@ -723,13 +723,17 @@ START_TEST(test_against_kept_samples)
    * intervals a full sort's order statistics; the moments
    * sp_stats_describe's; the histogram a direct count; NaN and infinities
    * counted, not folded. */
-  const double cst[] = {2.0, 1.8};
+  /* Three cases: a small run (selection), a large one (the bracketing
+   * passes, above 2^17 values) and a large one with heavily tied values
+   * (rounded to 0.5: the brackets miss and selection takes over). */
+  for (int cas = 0; cas < 3; cas++) {
+  const double cst[] = {2.0, 1.8, cas == 2 ? 1.0 : 0.0};
   model_ctx mc = {m_nan, cst};
   sp_evaluator ev = evaluator(&mc, 2, 2);
   sp_engine_input in[2] = {input(&fam_normal, 0, 1, "a"), input(&fam_normal, 0, 1, "b")};
-  const size_t N = 50001; /* not a multiple of the block */
+  const size_t N = cas == 0 ? 50001 : 300007; /* not multiples of the block */
   double extra[] = {33.3, 12.5};
-  sp_engine_options o = opts(N, 99);
+  sp_engine_options o = opts(N, 99 + cas);
   o.block = 1000;
   o.keep_samples = 1;
   o.percentiles = extra;
@@ -800,6 +804,7 @@ START_TEST(test_against_kept_samples)
     free(f);
   }
   sp_engine_result_free(&r);
+  }
 }
 END_TEST
 

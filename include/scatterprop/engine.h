@@ -111,6 +111,13 @@ sp_status sp_engine_method_find(const char *name, sp_engine_method *m, sp_error 
  * started complete, no new block starts, and the result is marked partial. */
 typedef int (*sp_engine_progress_fn)(void *user, uint64_t done, uint64_t total);
 
+/* Wall-clock seconds of the two phases of a run, filled when the options
+ * point to one (kept out of the result, which must not depend on timing). */
+typedef struct {
+  double blocks;   /* sampling, evaluation and merging of the blocks */
+  double summary;  /* percentiles, intervals, histogram, sensitivity */
+} sp_engine_timing;
+
 typedef struct {
   sp_engine_method method;
   uint64_t seed;
@@ -151,6 +158,7 @@ typedef struct {
   uint64_t memory_limit;  /* bytes; 0: 75% of physical memory */
   sp_engine_progress_fn progress; /* may be NULL */
   void *progress_user;
+  sp_engine_timing *timing;       /* may be NULL; written by the run */
 } sp_engine_options;
 
 /* Fills o with the defaults above (mc, seed 0, samples 0, block 4096, ...). */
