@@ -396,12 +396,13 @@ START_TEST(test_memory_guard)
   o.memory_limit = 1000000000u;
   sp_error err;
   ck_assert_int_eq(run_err(in, 1, &ev, &o, &err), SP_ENOMEM);
-  /* the figure: 38.4 GB of values plus the sort scratch of the 5% tails
-   * (16 bytes x 0.05 N) and the block table */
+  /* the figure: 38.4 GB of values plus the order-statistic scratch of the
+   * 5% tails (32 bytes x 0.05 N: copies and radix buffers) and the block
+   * table */
   uint64_t bytes;
   sp_error e2;
   ck_assert_int_eq(sp_engine_memory_needed(&o, 1, 1, &bytes, &e2), SP_OK);
-  ck_assert_msg(bytes >= 38400000000u && bytes < 1.15 * 38400000000.0, "%llu",
+  ck_assert_msg(bytes >= 38400000000u && bytes < 1.25 * 38400000000.0, "%llu",
                 (unsigned long long)bytes);
   char want[96];
   snprintf(want, sizeof want, "this run needs %.1f GB; the limit is 1.0 GB", bytes / 1e9);
