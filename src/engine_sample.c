@@ -131,12 +131,13 @@ sp_status engine_design_init(engine_design *d, sp_engine_method m, uint64_t seed
     for (size_t i = 0; i < dim; i++) {
       double x = v[i] * 0x1p30;
       if (!(x >= 0.0 && x < 0x1p30) || x != floor(x)) {
+        const double bad = v[i];
         free(v);
         gsl_qrng_free(q);
         engine_design_free(d);
         return sp_fail(err, SP_ENUMERIC,
                        "sobol: GSL point %llu, coordinate %zu = %.17g is not a multiple of 2^-30",
-                       (unsigned long long)j, i, v[i]);
+                       (unsigned long long)j, i, bad);
       }
       d->points[j * dim + i] = (uint32_t)x;
     }

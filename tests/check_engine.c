@@ -32,6 +32,7 @@
 #include <gsl/gsl_math.h>
 #include <gsl/gsl_randist.h>
 
+#include "scatterprop/dist.h"
 #include "scatterprop/engine.h"
 #include "scatterprop/rng.h"
 #include "scatterprop/stats.h"
@@ -836,7 +837,7 @@ static void same_result(const sp_engine_result *a, const sp_engine_result *b)
 
 START_TEST(test_threads_bit_identical)
 {
-  const double cst[] = {1.5, 1.7};
+  const double cst[] = {1.5, 1.7, 0.0};
   model_ctx mc = {m_nan, cst};
   sp_evaluator ev = evaluator(&mc, 2, 2);
   sp_engine_input in[2] = {input(&fam_normal, 0, 1, "a"), input(&fam_lognormal, 0, 0.5, "b")};
@@ -1258,6 +1259,53 @@ START_TEST(test_sobol_linear)
 }
 END_TEST
 
+/* ---- tests: the registered families (src/dist) ----------------------------- */
+
+START_TEST(test_registered_families)
+{
+  /* Through the identity model: weibull(shape 8, scale 120) has quantile
+   * 120 (-ln(1 - p))^(1/8) and density k/s (x/s)^(k-1) exp(-(x/s)^k);
+   * triangular(0, 1, 3) quantile sqrt(3p) for p <= 1/3 and
+   * 3 - sqrt(6(1 - p)) above (closed forms).  mc uses the families' own
+   * samplers, lhs their quantiles. */
+  const sp_family *w = sp_family_find("weibull"), *tri = sp_family_find("triangular");
+  ck_assert(w && tri);
+  double c[] = {2};
+  model_ctx mc = {m_identity, c};
+  sp_evaluator ev = evaluator(&mc, 2, 2);
+  sp_engine_input in[2];
+  memset(in, 0, sizeof in);
+  in[0].fam = w;
+  in[0].theta[sp_family_param_index(w, "shape")] = 8.0;
+  in[0].theta[sp_family_param_index(w, "scale")] = 120.0;
+  in[0].scale = 1.0;
+  in[1].fam = tri;
+  in[1].theta[sp_family_param_index(tri, "min")] = 0.0;
+  in[1].theta[sp_family_param_index(tri, "mode")] = 1.0;
+  in[1].theta[sp_family_param_index(tri, "max")] = 3.0;
+  in[1].scale = 1.0;
+  const size_t N = 200000;
+  for (int m = 0; m < 2; m++) {
+    sp_engine_options o = opts(N, 314 + m);
+    o.method = (sp_engine_method)m;
+    sp_engine_result r;
+    run_ok(in, 2, &ev, &o, &r);
+    for (size_t i = 0; i < r.npct; i++) {
+      double p = r.pct_p[i];
+      double xw = 120.0 * pow(-log1p(-p), 1.0 / 8.0);
+      double fw = 8.0 / 120.0 * pow(xw / 120.0, 7.0) * exp(-pow(xw / 120.0, 8.0));
+      ASSERT_ABS(r.pct[i], xw, 5 * quantile_se(p, N, fw));
+      double xt = p <= 1.0 / 3.0 ? sqrt(3.0 * p) : 3.0 - sqrt(6.0 * (1.0 - p));
+      /* density 2(x - a)/((b - a)(c - a)) below the mode, 2(b - x)/((b - a)(b - c)) above */
+      double ft = xt <= 1.0 ? 2.0 * xt / 3.0 : (3.0 - xt) / 3.0;
+      ASSERT_ABS(r.pct[r.npct + i], xt, 5 * quantile_se(p, N, ft));
+    }
+    ck_assert(r.out[1].min >= 0.0 && r.out[1].max <= 3.0);
+    sp_engine_result_free(&r);
+  }
+}
+END_TEST
+
 /* ---- suite ------------------------------------------------------------------- */
 
 static Suite *engine_suite(void)
@@ -1287,6 +1335,7 @@ static Suite *engine_suite(void)
   tcase_add_test(tc, test_adaptive);
   tcase_add_test(tc, test_sobol_ishigami);
   tcase_add_test(tc, test_sobol_linear);
+  tcase_add_test(tc, test_registered_families);
   suite_add_tcase(s, tc);
   return s;
 }
