@@ -110,6 +110,11 @@ sp_status engine_options_check(const sp_engine_options *opt, size_t ninputs,
   const int adaptive = !indices && opt->adaptive_digits > 0;
   if (!adaptive && opt->samples == 0)
     return sp_fail(err, SP_EUSAGE, "the number of samples must be at least 1");
+  /* 2^50 samples keep every byte count of the memory guard below 2^64 */
+  const uint64_t most = UINT64_C(1) << 50;
+  if ((!adaptive && opt->samples > most) || (adaptive && opt->max_samples > most))
+    return sp_fail(err, SP_EUSAGE, "at most 2^50 samples per run, got %llu",
+                   (unsigned long long)(adaptive ? opt->max_samples : opt->samples));
   if (opt->method == SP_ENGINE_SOBOL) {
     if (dim > SP_ENGINE_SOBOL_MAX_DIM)
       return sp_fail(err, SP_EUSAGE,
