@@ -28,6 +28,9 @@ void sp_error_clear(sp_error *err)
 
 static sp_status fail_v(sp_error *err, sp_status code, const char *file,
                         long line, long col, const char *fmt, va_list ap)
+    __attribute__((format(printf, 6, 0)));
+static sp_status fail_v(sp_error *err, sp_status code, const char *file,
+                        long line, long col, const char *fmt, va_list ap)
 {
   if (!err) return code;
   err->code = code;
@@ -298,6 +301,23 @@ static void hex_digest(const uint8_t d[SHA256_DIGEST_LENGTH], char hex[SP_SHA256
     hex[2 * i + 1] = digits[d[i] & 15];
   }
   hex[64] = '\0';
+}
+
+_Static_assert(sizeof(sp_sha256_ctx) >= sizeof(SHA2_CTX),
+               "sp_sha256_ctx must hold libmd's SHA2_CTX");
+
+void sp_sha256_init(sp_sha256_ctx *c) { SHA256Init((SHA2_CTX *)(void *)c); }
+
+void sp_sha256_update(sp_sha256_ctx *c, const void *data, size_t n)
+{
+  SHA256Update((SHA2_CTX *)(void *)c, data, n);
+}
+
+void sp_sha256_final(sp_sha256_ctx *c, char hex[SP_SHA256_HEX_LEN])
+{
+  uint8_t d[SHA256_DIGEST_LENGTH];
+  SHA256Final(d, (SHA2_CTX *)(void *)c);
+  hex_digest(d, hex);
 }
 
 void sp_sha256_buffer(const void *data, size_t n, char hex[SP_SHA256_HEX_LEN])

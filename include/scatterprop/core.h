@@ -102,6 +102,11 @@ sp_status sp_file_write_atomic(const char *path, const void *data, size_t n,
 #define SP_SHA256_HEX_LEN 65
 sp_status sp_sha256_file(const char *path, char hex[SP_SHA256_HEX_LEN],
                          uint64_t *size, sp_error *err);
+/* Incremental SHA-256 for data read in a stream (opaque state). */
+typedef struct { uint64_t opaque[32]; } sp_sha256_ctx;
+void sp_sha256_init(sp_sha256_ctx *c);
+void sp_sha256_update(sp_sha256_ctx *c, const void *data, size_t n);
+void sp_sha256_final(sp_sha256_ctx *c, char hex[SP_SHA256_HEX_LEN]);
 /* SHA-256 of a memory buffer. */
 void sp_sha256_buffer(const void *data, size_t n, char hex[SP_SHA256_HEX_LEN]);
 

@@ -76,6 +76,9 @@ typedef struct {
   sp_skipped_row *skipped;
   size_t nskipped;
   long header_line;
+  /* private: storage of the distinct strings of text columns */
+  char **strings_;
+  size_t nstrings_;
 } sp_table;
 
 /* Limits (documented in docs/limits.md). */

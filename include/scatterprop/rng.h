@@ -33,9 +33,11 @@ uint32_t sp_pcg32_next(sp_pcg32 *g);
 /* Advances by delta steps (delta may be any value; steps wrap mod 2^64). */
 void sp_pcg32_advance(sp_pcg32 *g, uint64_t delta);
 
+/* __extension__: ISO C and C++ have no 128-bit integer, GCC and Clang
+ * provide one; this keeps -Wpedantic quiet in every includer. */
 typedef struct {
-  unsigned __int128 state;
-  unsigned __int128 inc; /* always odd */
+  __extension__ unsigned __int128 state;
+  __extension__ unsigned __int128 inc; /* always odd */
 } sp_pcg64;
 
 /* Seeds as the reference pcg64_srandom_r(initstate, initseq); the 128-bit
@@ -51,18 +53,29 @@ void sp_pcg64_advance(sp_pcg64 *g, uint64_t delta_hi, uint64_t delta_lo);
  * block needs, such as one per model input -- is sp_pcg64 seeded with
  *   initstate = (splitmix64(seed), splitmix64(seed ^ 0x9e3779b97f4a7c15))
  *   initseq   = (seed, block * 2^16 + sub)
- * so every (seed, block, sub) has its own LCG increment, and any block can be
- * generated alone, by any thread or process.  block < 2^48, sub < 2^16. */
+ * where splitmix64 is sp_splitmix64 below and block * 2^16 + sub wraps mod
+ * 2^64.  Any block can be generated alone, by any thread or process.  Every
+ * (seed, block, sub) with block < 2^48, sub < 2^16 and seed < 2^63 has its
+ * own LCG increment (the increment 2 * initseq + 1 drops the top bit of
+ * seed, so seeds differing only in bit 63 share increments but start from
+ * different states). */
 void sp_rng_block_stream(sp_pcg64 *g, uint64_t seed, uint64_t block, uint32_t sub);
 
 /* SplitMix64 finaliser (Steele, Lea & Flood 2014, "Fast splittable
- * pseudorandom number generators", OOPSLA '14), used to spread seeds. */
+ * pseudorandom number generators", OOPSLA '14, 453-472), used to spread
+ * seeds: z = (x ^ x >> 30) * 0xbf58476d1ce4e5b9, z = (z ^ z >> 27) *
+ * 0x94d049bb133111eb, return z ^ z >> 31 (no increment is added first:
+ * sp_splitmix64(k * 0x9e3779b97f4a7c15) is the k-th output of Vigna's
+ * splitmix64.c seeded with 0). */
 uint64_t sp_splitmix64(uint64_t x);
 
 /* Uniform double in [0, 1) from the top 53 bits of one output. */
 double sp_rng_uniform(sp_pcg64 *g);
-/* Uniform double in the open interval (0, 1): (k + 0.5) / 2^53 for a 53-bit
- * k, for inverse-CDF sampling where 0 and 1 must never occur. */
+/* Uniform double in the open interval (0, 1): (k + 0.5) / 2^52 for the top
+ * 52 bits k of one output, for inverse-CDF sampling where 0 and 1 must never
+ * occur.  Every value is exact, in [2^-53, 1 - 2^-53], and symmetric about
+ * 1/2.  (53 bits cannot work: (k + 0.5) / 2^53 is not a double for
+ * k >= 2^52 and rounds to exactly 1 at k = 2^53 - 1.) */
 double sp_rng_uniform_open(sp_pcg64 *g);
 /* Fills u[0..n) with sp_rng_uniform_open values (the block sampler's source). */
 void sp_rng_fill_open(sp_pcg64 *g, double *u, size_t n);
@@ -71,7 +84,9 @@ void sp_rng_fill_open(sp_pcg64 *g, double *u, size_t n);
  * 477-484), so each deviate uses exactly one output of the stream. */
 double sp_rng_normal(sp_pcg64 *g);
 /* Uniform integer in [0, n) without modulo bias (Lemire 2019, "Fast random
- * integer generation in an interval", ACM TOMACS 29(1), 3:1-3:12). n > 0. */
+ * integer generation in an interval", ACM TOMACS 29(1), 3:1-3:12). n > 0;
+ * n == 0 returns 0 without drawing.  Uses one output, or more with
+ * probability (2^64 mod n) / 2^64. */
 uint64_t sp_rng_below(sp_pcg64 *g, uint64_t n);
 
 #ifdef __cplusplus

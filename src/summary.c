@@ -1,0 +1,271 @@
+/* scatterprop summary: per-column statistics, grouped and pooled. */
+#include "scatterprop/summary.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <jansson.h>
+
+void sp_groups_free(sp_group *groups, size_t ngroups)
+{
+  if (!groups) return;
+  for (size_t i = 0; i < ngroups; i++) {
+    free(groups[i].label);
+    free(groups[i].rows);
+  }
+  free(groups);
+}
+
+sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
+                          size_t *ngroups, sp_error *err)
+{
+  *groups = NULL;
+  *ngroups = 0;
+  const sp_column *c = sp_table_column(t, by);
+  if (!c) {
+    sp_fail(err, SP_EDATA, "%s: no column named '%s' to group by", t->path, by);
+    return sp_error_hint(err, "--by takes the name of a text column such as a lot id");
+  }
+  if (c->kind != SP_COLUMN_TEXT) {
+    sp_fail(err, SP_EDATA, "%s: column '%s' holds numbers; --by needs a text column",
+            t->path, c->header);
+    return sp_error_hint(err, "group by a column of lot or batch ids");
+  }
+  sp_group *g = NULL;
+  size_t ng = 0;
+  /* Labels are interned by the reader: equal strings share one pointer, so
+   * grouping compares pointers.  Few groups are expected; a linear scan of
+   * the group list per row is fine and keeps first-appearance order. */
+  size_t *counts = NULL;
+  for (int pass = 0; pass < 2; pass++) {
+    for (size_t r = 0; r < t->nrows; r++) {
+      const char *v = c->text[r];
+      size_t k = 0;
+      while (k < ng && strcmp(g[k].label, v) != 0) k++;
+      if (pass == 0) {
+        if (k == ng) {
+          sp_group *ngp = realloc(g, (ng + 1) * sizeof *g);
+          size_t *nc = realloc(counts, (ng + 1) * sizeof *counts);
+          if (ngp) g = ngp;
+          if (nc) counts = nc;
+          if (!ngp || !nc) goto oom;
+          memset(&g[ng], 0, sizeof g[ng]);
+          counts[ng] = 0;
+          g[ng].label = malloc(strlen(v) + 1);
+          if (!g[ng].label) goto oom;
+          strcpy(g[ng].label, v);
+          ng++;
+        }
+        counts[k]++;
+      } else {
+        g[k].rows[g[k].n++] = r;
+      }
+    }
+    if (pass == 0)
+      for (size_t k = 0; k < ng; k++) {
+        g[k].rows = malloc((counts[k] ? counts[k] : 1) * sizeof *g[k].rows);
+        if (!g[k].rows) goto oom;
+      }
+  }
+  free(counts);
+  *groups = g;
+  *ngroups = ng;
+  return SP_OK;
+oom:
+  free(counts);
+  sp_groups_free(g, ng);
+  return sp_fail(err, SP_ENOMEM, "out of memory");
+}
+
+int sp_summary_decimals_for(double sd)
+{
+  if (!(sd > 0) || !isfinite(sd)) return -1;
+  int d = 2 - (int)floor(log10(sd));
+  if (d < 0) d = 0;
+  if (d > 12) d = 12;
+  return d;
+}
+
+static sp_status summarise_rows(const sp_column *c, const size_t *rows, size_t nrows,
+                                double *work, sp_summary_row *out, sp_error *err)
+{
+  out->column = c;
+  out->rows = nrows;
+  out->missing = 0;
+  size_t k = 0;
+  for (size_t i = 0; i < nrows; i++) {
+    size_t r = rows ? rows[i] : i;
+    if (c->flags[r] & SP_OBS_MISSING) { out->missing++; continue; }
+    work[k++] = c->values[r];
+  }
+  out->has_stats = k > 0;
+  if (!out->has_stats) return SP_OK;
+  /* The values are copied, so describe may rearrange the copy in place. */
+  return sp_stats_describe(work, k, work + k, &out->d, err);
+}
+
+void sp_summary_set_free(sp_summary_set *s)
+{
+  if (!s) return;
+  for (size_t i = 0; i < s->nblocks; i++) free(s->blocks[i].rows);
+  free(s->blocks);
+  sp_groups_free(s->groups_, s->ngroups_);
+  free(s);
+}
+
+sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t ncolumns,
+                           const char *by, sp_summary_set **out, sp_error *err)
+{
+  *out = NULL;
+  sp_summary_set *s = calloc(1, sizeof *s);
+  if (!s) return sp_fail(err, SP_ENOMEM, "out of memory");
+  s->table = t;
+  s->by = by;
+  sp_status st = SP_OK;
+  double *work = NULL;
+  if (by) {
+    st = sp_table_groups(t, by, &s->groups_, &s->ngroups_, err);
+    if (st != SP_OK) goto done;
+  }
+  /* The columns to describe. */
+  const sp_column **cols = calloc(t->ncols ? t->ncols : 1, sizeof *cols);
+  if (!cols) { st = sp_fail(err, SP_ENOMEM, "out of memory"); goto done; }
+  size_t nc = 0;
+  if (ncolumns > 0) {
+    for (size_t i = 0; i < ncolumns; i++) {
+      const sp_column *c = sp_table_column(t, columns[i]);
+      if (!c) {
+        st = sp_fail(err, SP_EDATA, "%s: no column named '%s'", t->path, columns[i]);
+        break;
+      }
+      if (c->kind != SP_COLUMN_NUMERIC) {
+        st = sp_fail(err, SP_EDATA, "%s: column '%s' holds text, not numbers", t->path,
+                     c->header);
+        sp_error_hint(err, "its first reading is not a number; a unit in the header "
+                           "('%s [mm]') makes a column numeric, so a bad reading is then "
+                           "reported with its line", c->name);
+        break;
+      }
+      cols[nc++] = c;
+    }
+  } else {
+    for (size_t i = 0; i < t->ncols; i++)
+      if (t->cols[i].kind == SP_COLUMN_NUMERIC) cols[nc++] = &t->cols[i];
+  }
+  if (st == SP_OK && nc == 0) {
+    st = sp_fail(err, SP_EDATA, "%s: no numeric column to describe", t->path);
+  }
+  if (st == SP_OK) {
+    s->blocks = calloc(nc, sizeof *s->blocks);
+    work = malloc((2 * t->nrows + 1) * sizeof *work);
+    if (!s->blocks || !work) st = sp_fail(err, SP_ENOMEM, "out of memory");
+  }
+  for (size_t b = 0; b < nc && st == SP_OK; b++) {
+    sp_summary_block *blk = &s->blocks[b];
+    s->nblocks++;
+    blk->column = cols[b];
+    blk->nrows = s->ngroups_ + 1;
+    blk->rows = calloc(blk->nrows, sizeof *blk->rows);
+    if (!blk->rows) { st = sp_fail(err, SP_ENOMEM, "out of memory"); break; }
+    for (size_t g = 0; g < s->ngroups_ && st == SP_OK; g++) {
+      st = summarise_rows(cols[b], s->groups_[g].rows, s->groups_[g].n, work, &blk->rows[g], err);
+      blk->rows[g].group = s->groups_[g].label;
+    }
+    if (st == SP_OK) {
+      sp_summary_row *pooled = &blk->rows[s->ngroups_];
+      st = summarise_rows(cols[b], NULL, t->nrows, work, pooled, err);
+      pooled->group = NULL;
+      blk->decimals = pooled->has_stats ? sp_summary_decimals_for(pooled->d.sd) : -1;
+    }
+  }
+  free(cols);
+done:
+  free(work);
+  if (st != SP_OK) {
+    sp_summary_set_free(s);
+    return st;
+  }
+  *out = s;
+  return SP_OK;
+}
+
+/* JSON numbers: NaN has no JSON form, so undefined statistics are null. */
+static json_t *num(double v) { return isfinite(v) ? json_real(v) : json_null(); }
+
+char *sp_summary_json(const sp_summary_set *s, sp_error *err)
+{
+  const sp_table *t = s->table;
+  json_t *root = json_object();
+  json_t *meta = json_array();
+  json_t *skipped = json_array();
+  json_t *cols = json_array();
+  if (!root || !meta || !skipped || !cols) goto oom;
+  json_object_set_new(root, "format", json_string("scatterprop-summary"));
+  json_object_set_new(root, "version", json_integer(1));
+  json_object_set_new(root, "tool_version", json_string(sp_version()));
+  json_object_set_new(root, "file", json_string(t->path));
+  json_object_set_new(root, "size", json_integer((json_int_t)t->size));
+  json_object_set_new(root, "sha256", json_string(t->sha256));
+  for (size_t i = 0; i < t->nmeta; i++) {
+    json_t *m = json_object();
+    json_object_set_new(m, "key", json_string(t->meta[i].key));
+    json_object_set_new(m, "value", json_string(t->meta[i].value));
+    json_object_set_new(m, "line", json_integer(t->meta[i].line));
+    json_array_append_new(meta, m);
+  }
+  json_object_set_new(root, "metadata", meta);
+  json_object_set_new(root, "rows", json_integer((json_int_t)t->nrows));
+  for (size_t i = 0; i < t->nskipped; i++) {
+    json_t *k = json_object();
+    json_object_set_new(k, "line", json_integer(t->skipped[i].line));
+    json_object_set_new(k, "column", json_integer(t->skipped[i].col));
+    json_object_set_new(k, "reason", json_string(t->skipped[i].reason));
+    json_array_append_new(skipped, k);
+  }
+  json_object_set_new(root, "skipped_rows", skipped);
+  json_object_set_new(root, "group_by", s->by ? json_string(s->by) : json_null());
+  for (size_t b = 0; b < s->nblocks; b++) {
+    const sp_summary_block *blk = &s->blocks[b];
+    json_t *c = json_object();
+    json_t *groups = json_array();
+    json_object_set_new(c, "name", json_string(blk->column->name));
+    json_object_set_new(c, "unit", blk->column->unit_text ? json_string(blk->column->unit_text)
+                                                         : json_null());
+    for (size_t g = 0; g < blk->nrows; g++) {
+      const sp_summary_row *r = &blk->rows[g];
+      json_t *o = json_object();
+      json_object_set_new(o, "group", r->group ? json_string(r->group) : json_null());
+      json_object_set_new(o, "rows", json_integer((json_int_t)r->rows));
+      json_object_set_new(o, "missing", json_integer((json_int_t)r->missing));
+      json_object_set_new(o, "n", json_integer((json_int_t)(r->has_stats ? r->d.n : 0)));
+      double nanv = NAN;
+      const sp_describe *d = &r->d;
+      json_object_set_new(o, "mean", num(r->has_stats ? d->mean : nanv));
+      json_object_set_new(o, "sd", num(r->has_stats ? d->sd : nanv));
+      json_object_set_new(o, "min", num(r->has_stats ? d->min : nanv));
+      json_object_set_new(o, "q1", num(r->has_stats ? d->q1 : nanv));
+      json_object_set_new(o, "median", num(r->has_stats ? d->median : nanv));
+      json_object_set_new(o, "q3", num(r->has_stats ? d->q3 : nanv));
+      json_object_set_new(o, "max", num(r->has_stats ? d->max : nanv));
+      json_object_set_new(o, "skewness", num(r->has_stats ? d->skewness : nanv));
+      json_object_set_new(o, "excess_kurtosis", num(r->has_stats ? d->kurtosis : nanv));
+      json_array_append_new(groups, o);
+    }
+    json_object_set_new(c, "groups", groups);
+    json_array_append_new(cols, c);
+  }
+  json_object_set_new(root, "columns", cols);
+  json_object_set_new(root, "definitions",
+                      json_string("sd with n-1; skewness m3/m2^1.5 and excess kurtosis "
+                                  "m4/m2^2-3 (NIST/SEMATECH e-Handbook 1.3.5.11); quartiles "
+                                  "Hyndman & Fan (1996) definition 7"));
+  char *txt = json_dumps(root, JSON_INDENT(2) | JSON_PRESERVE_ORDER | JSON_REAL_PRECISION(17));
+  json_decref(root);
+  if (!txt) sp_fail(err, SP_ENOMEM, "out of memory");
+  return txt;
+oom:
+  json_decref(root); json_decref(meta); json_decref(skipped); json_decref(cols);
+  sp_fail(err, SP_ENOMEM, "out of memory");
+  return NULL;
+}
