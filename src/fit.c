@@ -441,12 +441,12 @@ static sp_status fit_candidate(const sp_family *fam, const double *x,
   }
   if (st != SP_OK) {
     c->status = (st == SP_EDATA || st == SP_EUSAGE) ? SP_FIT_SKIPPED : SP_FIT_FAILED;
-    snprintf(c->reason, sizeof c->reason, "%s", e.msg);
+    snprintf(c->reason, sizeof c->reason, "%.300s", e.msg);
     return SP_OK;
   }
   c->method = info.method;
   c->converged = info.converged;
-  snprintf(c->reason, sizeof c->reason, "%s", info.note);
+  snprintf(c->reason, sizeof c->reason, "%.300s", info.note);
   double nll = sp_fit_negloglik(fam, c->theta, x, n, NULL);
   if (!isfinite(nll)) {
     if (info.method != SP_FIT_METHOD_MPS) {
@@ -716,7 +716,7 @@ sp_status sp_fit_run_grouped(const double *x, const char *const *group, size_t n
     sp_error_clear(&e);
     G->status = sp_fit_run(vals, m, opt, &G->fit, &e);
     if (G->status == SP_ENOMEM) { *err = e; st = SP_ENOMEM; goto done; }
-    if (G->status != SP_OK) snprintf(G->message, sizeof G->message, "%s", e.msg);
+    if (G->status != SP_OK) snprintf(G->message, sizeof G->message, "%.300s", e.msg);
   }
   {
     size_t m = 0;

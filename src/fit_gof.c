@@ -27,7 +27,7 @@
  * (Stephens, M.A. (1974). EDF statistics for goodness of fit and some
  * comparisons. JASA 69(347), 730-737, eqs. 2-4). */
 static void gof_stats(const double *P, const double *Q, size_t n,
-                      sp_fit_gof gof[SP_FIT_NGOF])
+                      sp_fit_gof *gof)
 {
   double a = 0.0, d = 0.0, w = 0.0, dn = (double)n;
   for (size_t i = 0; i < n; i++) {
@@ -46,7 +46,7 @@ static void gof_stats(const double *P, const double *Q, size_t n,
 
 void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
                        const double *sorted, size_t n, double *P, double *Q,
-                       sp_fit_gof gof[SP_FIT_NGOF])
+                       sp_fit_gof *gof)
 {
   for (size_t i = 0; i < n; i++) {
     P[i] = fam->cdf_P(theta, sorted[i]);
@@ -56,7 +56,7 @@ void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
 }
 
 sp_status sp_fit_gof_stats(const sp_family *fam, const double *theta,
-                           const double *x, size_t n, sp_fit_gof gof[SP_FIT_NGOF],
+                           const double *x, size_t n, sp_fit_gof *gof,
                            sp_error *err)
 {
   double *s = malloc(3 * (n ? n : 1) * sizeof *s);

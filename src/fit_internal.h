@@ -69,7 +69,7 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
  * scratch arrays of n doubles. */
 void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
                        const double *sorted, size_t n, double *P, double *Q,
-                       sp_fit_gof gof[SP_FIT_NGOF]);
+                       sp_fit_gof *gof);
 
 /* Published-approximation p-values for candidate c when they exist for
  * its family with every parameter estimated: sets gof[*].p and method and

@@ -121,7 +121,7 @@ typedef struct {
 
 static void t_to_theta(const tctx *c, const double *t, double *theta)
 {
-  memcpy(theta, c->base, sizeof c->base);
+  memcpy(theta, c->base, c->fam->nparam * sizeof *theta);
   for (size_t j = 0; j < c->k; j++) {
     size_t p = c->idx[j];
     switch (c->fam->param_kinds[p]) {
@@ -260,7 +260,20 @@ static int newton_polish(tctx *c, double *t, double *f, size_t *iters)
     for (size_t j = 0; j < k; j++) dec += g[j] * d[j];
     double tol = FIT_DECREMENT_TOL * fmax(1.0, fabs(*f));
     if (!(dec >= 0.0)) return 0;
-    if (0.5 * dec <= tol) return 1;
+    if (0.5 * dec <= tol) {
+      /* One more full step: inside the quadratic region it squares the
+       * remaining error, so the estimate ends at the rounding floor rather
+       * than at the tolerance.  The predicted decrease is below tol, which
+       * is the level of the objective's rounding noise (a sum of n terms),
+       * so the step is taken unless it raises f by more than tol. */
+      for (size_t j = 0; j < k; j++) tn[j] = t[j] - d[j];
+      double fn = f_t(c, tn);
+      if (fn <= *f + tol) {
+        memcpy(t, tn, k * sizeof *t);
+        *f = fn;
+      }
+      return 1;
+    }
     double s = 1.0;
     int moved = 0;
     for (int ls = 0; ls < 30; ls++) {

@@ -438,7 +438,7 @@ static sp_status check_family(rctx *r, const json_t *o, const char *path,
                               const sp_family **out)
 {
   char p[256];
-  const char *name;
+  const char *name = NULL;
   snprintf(p, sizeof p, "%s.family", path);
   TRY(need_str(r, o, "family", p, 0, &name));
   *out = sp_family_find(name);
@@ -452,7 +452,7 @@ static sp_status check_params(rctx *r, const json_t *o, const char *key, const c
                               const sp_family *f, int nullable, double *out)
 {
   char p[256];
-  json_t *v;
+  json_t *v = NULL;
   snprintf(p, sizeof p, "%s.%s", path, key);
   TRY(need_obj(r, o, key, p, &v));
   for (size_t q = 0; q < f->nparam; q++) {
@@ -479,7 +479,7 @@ static sp_status check_fixed(rctx *r, const json_t *o, const char *path, const s
                              int *fixed)
 {
   char p[256];
-  json_t *a;
+  json_t *a = NULL;
   snprintf(p, sizeof p, "%s.fixed", path);
   TRY(need_arr(r, o, "fixed", p, &a));
   size_t i;
@@ -509,7 +509,7 @@ static sp_status check_cov(rctx *r, const json_t *o, const char *path, const sp_
   char pn[300], pm[300];
   snprintf(pn, sizeof pn, "%s.params", p);
   snprintf(pm, sizeof pm, "%s.matrix", p);
-  json_t *names, *m;
+  json_t *names = NULL, *m = NULL;
   TRY(need_arr(r, c, "params", pn, &names));
   TRY(need_arr(r, c, "matrix", pm, &m));
   size_t k = json_array_size(names);
@@ -567,7 +567,7 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
   const sp_family *f;
   TRY(check_family(r, c, path, &f));
   char p[320];
-  const char *status, *s;
+  const char *status = NULL, *s = NULL;
   static const char *const statuses[] = {"ok", "skipped", "failed"};
   snprintf(p, sizeof p, "%s.status", path);
   TRY(need_str(r, c, "status", p, 0, &status));
@@ -607,11 +607,11 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
   int avail;
   double cov[SP_FAMILY_MAX_PARAMS][SP_FAMILY_MAX_PARAMS];
   TRY(check_cov(r, c, path, f, fixed, &avail, cov));
-  json_t *g;
+  json_t *g = NULL;
   snprintf(p, sizeof p, "%s.gof", path);
   TRY(need_obj(r, c, "gof", p, &g));
   for (int j = 0; j < SP_FIT_NGOF; j++) {
-    json_t *st;
+    json_t *st = NULL;
     char pg[340], pp[360];
     snprintf(pg, sizeof pg, "%s.gof.%s", path, gof_keys[j]);
     TRY(need_obj(r, g, gof_keys[j], pg, &st));
@@ -656,7 +656,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   if (!json_is_object(root))
     return sp_fail(r->err, SP_EDATA, "fit record %s: the top level must be a JSON object",
                    r->name);
-  const char *s;
+  const char *s = NULL;
   TRY(need_str(r, root, "format", "format", 0, &s));
   if (strcmp(s, SP_RECORD_FIT_FORMAT) != 0)
     return bad(r, "format", "must be \"%s\", got \"%s\"", SP_RECORD_FIT_FORMAT, s);
@@ -665,7 +665,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   if (v != SP_RECORD_FIT_VERSION)
     return bad(r, "version", "is %lld; this build reads version %d", v,
                SP_RECORD_FIT_VERSION);
-  json_t *tool, *data, *opt, *cands;
+  json_t *tool = NULL, *data = NULL, *opt = NULL, *cands = NULL;
   TRY(need_obj(r, root, "tool", "tool", &tool));
   TRY(need_str(r, tool, "name", "tool.name", 0, &s));
   TRY(need_str(r, tool, "version", "tool.version", 0, &s));
@@ -673,13 +673,13 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_str(r, root, "created_utc", "created_utc", 0, &s));
 
   TRY(need_obj(r, root, "data", "data", &data));
-  const char *path, *sha, *column, *unit;
+  const char *path = NULL, *sha = NULL, *column = NULL, *unit = NULL;
   TRY(need_str(r, data, "path", "data.path", 0, &path));
   TRY(need_count(r, data, "size", "data.size", 0, &v));
   TRY(need_str(r, data, "sha256", "data.sha256", 0, &sha));
   if (strlen(sha) != 64 || strspn(sha, "0123456789abcdef") != 64)
     return bad(r, "data.sha256", "must be 64 lower-case hexadecimal digits");
-  json_t *meta;
+  json_t *meta = NULL;
   TRY(need_arr(r, data, "metadata", "data.metadata", &meta));
   size_t i;
   json_t *m;
@@ -702,7 +702,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_count(r, data, "missing", "data.missing", 0, &missing));
 
   TRY(need_obj(r, root, "options", "options", &opt));
-  json_t *fams, *fixed, *boot;
+  json_t *fams = NULL, *fixed = NULL, *boot = NULL;
   TRY(need_arr(r, opt, "families", "options.families", &fams));
   json_array_foreach(fams, i, m) {
     char p[64];
@@ -745,7 +745,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
     TRY(check_candidate(r, m, p));
   }
 
-  const char *reason;
+  const char *reason = NULL;
   TRY(need_str(r, root, "choice_reason", "choice_reason", 0, &reason));
   json_t *ch = field(root, "chosen");
   if (!ch) return bad(r, "chosen", "is missing");
@@ -769,7 +769,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   if (!by) return bad(r, "by", "is missing");
   if (!json_is_null(by) && !json_is_object(by)) return bad(r, "by", "must be an object or null");
   if (json_is_object(by)) {
-    json_t *groups;
+    json_t *groups = NULL;
     TRY(need_str(r, by, "column", "by.column", 0, &s));
     TRY(need_arr(r, by, "groups", "by.groups", &groups));
     json_array_foreach(groups, i, m) {
@@ -778,7 +778,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
       if (!json_is_object(m)) return bad(r, p, "must be an object");
       snprintf(pp, sizeof pp, "%s.value", p);
       TRY(need_str(r, m, "value", pp, 0, &s));
-      json_t *gc;
+      json_t *gc = NULL;
       snprintf(pp, sizeof pp, "%s.candidates", p);
       TRY(need_arr(r, m, "candidates", pp, &gc));
       size_t j;

@@ -237,7 +237,7 @@ double sp_fit_criterion(const sp_fit_candidate *c, sp_fit_select s);
  * D, W^2 into gof[SP_FIT_GOF_*].stat; p-values are not touched.
  * SP_ENOMEM only. */
 sp_status sp_fit_gof_stats(const sp_family *fam, const double *theta,
-                           const double *x, size_t n, sp_fit_gof gof[SP_FIT_NGOF],
+                           const double *x, size_t n, sp_fit_gof *gof,
                            sp_error *err);
 
 /* Parametric bootstrap of the goodness-of-fit statistics for candidate c
