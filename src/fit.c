@@ -732,3 +732,40 @@ done:
   if (st != SP_OK) sp_fit_grouped_clear(out);
   return st;
 }
+
+sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
+                       const sp_fit_options *opt, sp_fit_grouped *out, sp_error *err)
+{
+  memset(out, 0, sizeof *out);
+  out->pooled.chosen = -1;
+  const sp_column *c = sp_table_column(t, column);
+  if (!c) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, column);
+  if (c->kind != SP_COLUMN_NUMERIC)
+    return sp_fail(err, SP_EUSAGE, "%s: column '%s' is text, not numbers", t->path, column);
+  for (size_t i = 0; i < c->n; i++)
+    if (c->flags[i] & (SP_OBS_CENSORED_LEFT | SP_OBS_CENSORED_RIGHT))
+      return sp_fail(err, SP_EDATA, "%s: column '%s' has censored observations (row %zu), "
+                     "which this release cannot fit", t->path, column, i + 1);
+  sp_fit_options o = *opt;
+  if (!o.meta) {
+    o.meta = t->meta;
+    o.nmeta = t->nmeta;
+  }
+  if (by) {
+    const sp_column *g = sp_table_column(t, by);
+    if (!g) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
+    if (g->kind != SP_COLUMN_TEXT)
+      return sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
+    return sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o, out, err);
+  }
+  double *v = malloc((c->n ? c->n : 1) * sizeof *v);
+  if (!v) return sp_fit_fail_nomem(err);
+  size_t m = 0;
+  for (size_t i = 0; i < c->n; i++) {
+    if (c->flags[i] & SP_OBS_MISSING || isnan(c->values[i])) out->pooled_missing++;
+    else v[m++] = c->values[i];
+  }
+  sp_status st = sp_fit_run(v, m, &o, &out->pooled, err);
+  free(v);
+  return st;
+}

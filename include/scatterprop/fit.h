@@ -279,6 +279,16 @@ sp_status sp_fit_run_grouped(const double *x, const char *const *group, size_t n
                              sp_error *err);
 void sp_fit_grouped_clear(sp_fit_grouped *g);
 
+/* Fits the numeric column `column` of t: missing cells are dropped and
+ * counted, the table's metadata supplies LIMIT parameters not fixed in
+ * opt, and with `by` (a text column's name) the fit is per lot plus
+ * pooled; without it out->ngroups is 0 and out->pooled is the fit.
+ * Errors: SP_EUSAGE (no such column, the column is not numeric, `by` is
+ * not a text column), SP_EDATA (censored observations, which this release
+ * cannot fit yet; fewer than 2 values), and those of sp_fit_run. */
+sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
+                       const sp_fit_options *opt, sp_fit_grouped *out, sp_error *err);
+
 #ifdef __cplusplus
 }
 #endif
