@@ -161,21 +161,22 @@ void sp_fit_sort(double *x, size_t n)
 
 /* Scale equivariance, detected numerically.  The general minimiser works
  * better on data of order one, but only a family whose parameters map
- * under x -> x/c (locations and scales divide by c, shapes stay) may be
- * fitted on x/c and mapped back.  The family table does not say which
- * positive parameter is a scale, so each assignment of "scale" or "shape"
- * to the positive parameters is tried and accepted when
+ * under x -> x/c (locations and scales divide by c, rates multiply,
+ * shapes stay) may be fitted on x/c and mapped back.  The family table
+ * does not say which positive parameter is a scale, a rate or a shape, so
+ * each assignment is tried (3^m for m positive parameters, at most 81) and
+ * accepted when
  *   logpdf(M_c theta, c y) = logpdf(theta, y) - ln c
  * holds to 1e-9 relative at five data points, two parameter points and
  * two factors c.  c is a power of two, so x/c is exact. */
-static void map_scale(const sp_family *fam, unsigned mask, double c,
+static void map_scale(const sp_family *fam, unsigned code, double c,
                       const double *theta, double *out)
 {
-  unsigned bit = 0;
   for (size_t p = 0; p < fam->nparam; p++) {
     if (fam->param_kinds[p] == SP_PARAM_POSITIVE) {
-      out[p] = (mask >> bit & 1u) ? theta[p] * c : theta[p];
-      bit++;
+      unsigned mode = code % 3u;
+      code /= 3u;
+      out[p] = mode == 0 ? theta[p] : mode == 1 ? theta[p] * c : theta[p] / c;
     } else {
       out[p] = theta[p] * c;
     }
@@ -183,23 +184,23 @@ static void map_scale(const sp_family *fam, unsigned mask, double c,
 }
 
 static int scale_mask(const sp_family *fam, const double *theta, const double *x,
-                      size_t n, unsigned *mask_out)
+                      size_t n, unsigned *code_out)
 {
-  unsigned npos = 0;
+  unsigned ncodes = 1;
   for (size_t p = 0; p < fam->nparam; p++)
-    if (fam->param_kinds[p] == SP_PARAM_POSITIVE) npos++;
+    if (fam->param_kinds[p] == SP_PARAM_POSITIVE) ncodes *= 3u;
   double th[2][SP_FAMILY_MAX_PARAMS];
   memcpy(th[0], theta, fam->nparam * sizeof *theta);
   for (size_t p = 0; p < fam->nparam; p++)
     th[1][p] = fam->param_kinds[p] == SP_PARAM_POSITIVE ? theta[p] * 1.25 : theta[p];
   const double cs[2] = {8.0, 0.125};
   const size_t at[5] = {0, n / 4, n / 2, (3 * n) / 4, n - 1};
-  for (unsigned mask = 0; mask < (1u << npos); mask++) {
+  for (unsigned code = 0; code < ncodes; code++) {
     int ok = 1, compared = 0;
     for (int a = 0; a < 2 && ok; a++) {
       for (int b = 0; b < 2 && ok; b++) {
         double m[SP_FAMILY_MAX_PARAMS];
-        map_scale(fam, mask, cs[b], th[a], m);
+        map_scale(fam, code, cs[b], th[a], m);
         for (int q = 0; q < 5 && ok; q++) {
           double y = x[at[q]];
           double l0 = fam->logpdf(th[a], y);
@@ -211,7 +212,7 @@ static int scale_mask(const sp_family *fam, const double *theta, const double *x
       }
     }
     if (ok && compared >= 6) {
-      *mask_out = mask;
+      *code_out = code;
       return 1;
     }
   }
