@@ -3,6 +3,7 @@
 #   make test   set up, build, and run the whole test suite (ctest)
 BUILD ?= build
 CMAKE_FLAGS ?=
+MAKEFLAGS += --no-print-directory
 JOBS ?= $(shell nproc 2>/dev/null || echo 2)
 
 .PHONY: all deps configure build demo test clean sanitize bench-ingest

@@ -41,8 +41,8 @@ static void put_value(FILE *out, int width, int decimals, double v)
 
 static void put_shape(FILE *out, double v)
 {
-  if (!isfinite(v)) fprintf(out, " %8s", "-");
-  else fprintf(out, " %8.2f", v);
+  if (!isfinite(v)) fprintf(out, " %6s", "-");
+  else fprintf(out, " %6.2f", v);
 }
 
 static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_block *b)
@@ -53,26 +53,29 @@ static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_blo
   else fprintf(out, "  (no unit given)");
   if (s->by) fprintf(out, "  by %s", s->by);
   fputc('\n', out);
-  int width = 10;
-  /* Widen the value columns to fit the largest value. */
+  /* Value columns as wide as the widest value needs, at least 7. */
+  int width = 7;
   const sp_summary_row *pooled = &b->rows[b->nrows - 1];
-  if (pooled->has_stats && b->decimals >= 0) {
+  if (pooled->has_stats) {
     double big = fmax(fabs(pooled->d.min), fabs(pooled->d.max));
-    int need = (big >= 1 ? (int)floor(log10(big)) + 1 : 1) + 2 + b->decimals;
+    int neg = pooled->d.min < 0;
+    int need = b->decimals >= 0
+                   ? (big >= 1 ? (int)floor(log10(big)) + 1 : 1) + 1 + b->decimals + neg
+                   : 12;
     if (need > width) width = need;
   }
   int gw = 8;
   for (size_t g = 0; g < b->nrows; g++)
     if (b->rows[g].group && (int)strlen(b->rows[g].group) > gw) gw = (int)strlen(b->rows[g].group);
   if (gw > 24) gw = 24;
-  fprintf(out, "  %-*s %7s %7s %*s %*s %*s %*s %*s %*s %*s %8s %8s\n", gw, "group", "n",
-          "missing", width, "mean", width, "sd", width, "min", width, "q1", width, "median",
-          width, "q3", width, "max", "skewness", "ex.kurt");
+  fprintf(out, "  %-*s %5s %4s %*s %*s %*s %*s %*s %*s %*s %6s %6s\n", gw, "group", "n",
+          "miss", width, "mean", width, "sd", width, "min", width, "q1", width, "median",
+          width, "q3", width, "max", "skew", "exkurt");
   for (size_t g = 0; g < b->nrows; g++) {
     const sp_summary_row *r = &b->rows[g];
     const char *label = r->group ? (r->group[0] ? r->group : "(blank)")
                                  : (s->by ? "(pooled)" : "(all)");
-    fprintf(out, "  %-*.*s %7zu %7zu", gw, gw, label, r->has_stats ? r->d.n : 0, r->missing);
+    fprintf(out, "  %-*.*s %5zu %4zu", gw, gw, label, r->has_stats ? r->d.n : 0, r->missing);
     if (!r->has_stats) {
       fprintf(out, "  every value is missing\n");
       continue;
@@ -145,7 +148,7 @@ int cli_summary_run(int argc, char **argv)
     if (!txt) rc = cli_report(&err);
     else { printf("%s\n", txt); free(txt); }
   } else {
-    printf("%s: %zu data row%s, %zu column%s (header on line %ld)\n", t->path, t->nrows,
+    printf("%s: %zu data row%s, %zu column%s read (header on line %ld)\n", t->path, t->nrows,
            t->nrows == 1 ? "" : "s", t->ncols, t->ncols == 1 ? "" : "s", t->header_line);
     printf("sha256 %s, %llu bytes\n", t->sha256, (unsigned long long)t->size);
     for (size_t i = 0; i < t->nmeta; i++) {
@@ -159,8 +162,9 @@ int cli_summary_run(int argc, char **argv)
         printf("  %s:%ld:%ld: %s\n", t->path, t->skipped[i].line, t->skipped[i].col,
                t->skipped[i].reason);
     }
-    printf("\nsd uses n-1; skewness and excess kurtosis as in the NIST/SEMATECH e-Handbook\n"
-           "1.3.5.11; quartiles by linear interpolation (Hyndman & Fan definition 7).\n\n");
+    printf("\nn: readings used; miss: missing (empty or NA). sd uses n-1; skew and exkurt\n"
+           "(excess kurtosis) as in the NIST/SEMATECH e-Handbook 1.3.5.11; quartiles q1,\n"
+           "median, q3 by linear interpolation (Hyndman & Fan 1996, definition 7).\n\n");
     cli_print_caution(stdout);
   }
   sp_summary_set_free(set);
