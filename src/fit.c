@@ -480,15 +480,23 @@ void sp_fit_rank(sp_fit_result *r)
 {
   const sp_fit_options *o = &r->opt;
   size_t nok = 0, nfree = 0;
+  int substitute = 0;
   r->chosen = -1;
   for (size_t i = 0; i < r->ncand; i++) {
     sp_fit_candidate *c = &r->cand[i];
     c->rank = 0;
     c->rejected = 0;
+    c->judged_by = -1;
     if (c->status != SP_FIT_OK) continue;
     nok++;
-    double pa = c->gof[SP_FIT_GOF_A2].p;
-    c->rejected = isfinite(pa) && pa < o->alpha;
+    /* A^2 first; W^2 (the other quadratic statistic), then D, stand in
+     * when A^2 has no p-value. */
+    static const int order[SP_FIT_NGOF] = {SP_FIT_GOF_A2, SP_FIT_GOF_W2, SP_FIT_GOF_D};
+    c->judged_by = -1;
+    for (int j = 0; j < SP_FIT_NGOF && c->judged_by < 0; j++)
+      if (isfinite(c->gof[order[j]].p)) c->judged_by = order[j];
+    if (c->judged_by > SP_FIT_GOF_A2) substitute = 1;
+    c->rejected = c->judged_by >= 0 && c->gof[c->judged_by].p < o->alpha;
     if (!c->rejected) nfree++;
   }
   /* Rank by the criterion; ties keep candidate order. */
@@ -544,15 +552,17 @@ void sp_fit_rank(sp_fit_result *r)
   r->chosen = best;
   const sp_fit_candidate *c = &r->cand[best];
   double v = o->select == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, o->select);
+  const char *by = substitute ? "A² (W² where A² is infinite)" : "A²";
   if (nfree > 0)
     snprintf(r->reason, sizeof r->reason,
-             "%s: %s %s (%.1f) of the %zu candidate%s not rejected by A² at %g%%",
-             c->family->name, best_word, crit, v, nfree, nfree == 1 ? "" : "s", alpha_pct);
+             "%s: %s %s (%.1f) of the %zu candidate%s not rejected by %s at %g%%",
+             c->family->name, best_word, crit, v, nfree, nfree == 1 ? "" : "s", by,
+             alpha_pct);
   else
     snprintf(r->reason, sizeof r->reason,
              "%s: %s %s (%.1f) of the %zu fitted candidate%s; every one is rejected "
-             "by A² at %g%%",
-             c->family->name, best_word, crit, v, nok, nok == 1 ? "" : "s", alpha_pct);
+             "by %s at %g%%",
+             c->family->name, best_word, crit, v, nok, nok == 1 ? "" : "s", by, alpha_pct);
 }
 
 sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,

@@ -135,6 +135,17 @@ sp_status sp_fit_bootstrap(sp_fit_candidate *c, size_t n, size_t B, uint64_t see
   size_t bok = B - (size_t)nfail;
   c->bootstrap_failed = (size_t)nfail;
   for (int j = 0; j < SP_FIT_NGOF; j++) {
+    if (!isfinite(T[j])) {
+      /* An estimate on the data boundary (uniform's min and max,
+       * exponential2's location) puts F = 0 or 1 at an observation, so A^2
+       * is infinite for the data and for every replicate alike: no
+       * p-value can be had from it. */
+      c->gof[j].p = NAN;
+      snprintf(c->gof[j].method, sizeof c->gof[j].method,
+               "not available: the statistic is infinite (the estimate puts an "
+               "observation where F is 0 or 1)");
+      continue;
+    }
     c->gof[j].p = (1.0 + (double)ge[j]) / ((double)bok + 1.0);
     snprintf(c->gof[j].method, sizeof c->gof[j].method,
              "parametric bootstrap, %zu refitted replicates, seed %llu", bok,

@@ -179,6 +179,7 @@ static json_t *candidate_obj(wctx *w, const sp_fit_candidate *c)
     set(w, o, "gof", json_null());
   }
   set(w, o, "rejected", json_boolean(c->rejected));
+  set(w, o, "judged_by", ok && c->judged_by >= 0 ? str(w, gof_keys[c->judged_by]) : json_null());
   set(w, o, "rank", c->rank ? integer(w, (long long)c->rank) : json_null());
   return o;
 }
@@ -600,6 +601,9 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
   }
   snprintf(p, sizeof p, "%s.rejected", path);
   TRY(need_bool(r, c, "rejected", p));
+  snprintf(p, sizeof p, "%s.judged_by", path);
+  TRY(need_str(r, c, "judged_by", p, 1, &s));
+  if (s && !one_of(s, gof_keys, SP_FIT_NGOF)) return bad(r, p, "must be A2, W2, D or null");
   if (!ok) return SP_OK;
   double theta[SP_FAMILY_MAX_PARAMS];
   TRY(check_params(r, c, "params", path, f, 0, theta));

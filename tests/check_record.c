@@ -197,6 +197,8 @@ START_TEST(test_bad_fields)
            "field 'candidates[0].loglik' must be a number or null");
   case_bad("\"candidates\"", "k", "-1", "field 'candidates[0].k' must be at least 0");
   case_bad("\"candidates\"", "rejected", "null", "field 'candidates[0].rejected'");
+  case_bad("\"candidates\"", "judged_by", "\"KS\"",
+           "field 'candidates[0].judged_by' must be A2, W2, D or null");
   /* The second candidate: its A^2 p-value outside [0, 1]. */
   {
     const char *second = strstr(strstr(record_text, "\"candidates\""), "\"family\": \"weibull\"");

@@ -163,7 +163,12 @@ typedef struct {
   sp_fit_ci_scale ci_scale[SP_FAMILY_MAX_PARAMS];
   sp_fit_gof gof[SP_FIT_NGOF];
   size_t bootstrap_failed;        /* replicates whose refit failed (excluded) */
-  int rejected;                   /* A^2 p < alpha */
+  /* Rejection: A^2 p < alpha; when A^2 has no p-value (infinite for an
+   * estimate on the data boundary) W^2 is used instead, then D.
+   * judged_by is the SP_FIT_GOF_* index of the statistic used, or -1 when
+   * none had a p-value (never rejected then). */
+  int rejected;
+  int judged_by;
   size_t rank;                    /* 1 = best by the criterion; 0 if not ranked */
 } sp_fit_candidate;
 
@@ -220,11 +225,12 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
 sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
                      sp_fit_result *out, sp_error *err);
 
-/* Ranks the SP_FIT_OK candidates of r by r->opt.select, sets their rank and
- * rejected fields, and chooses (r->chosen, r->reason): the forced family
- * if r->opt.force_family is set, otherwise the best candidate not rejected
- * by A^2 at level r->opt.alpha (the best overall, said so, when every
- * candidate is rejected; a candidate without an A^2 p-value is never
+/* Ranks the SP_FIT_OK candidates of r by r->opt.select, sets their rank,
+ * rejected and judged_by fields, and chooses (r->chosen, r->reason): the
+ * forced family if r->opt.force_family is set, otherwise the best
+ * candidate not rejected by A^2 at level r->opt.alpha (W^2, then D, for a
+ * candidate whose A^2 has no p-value; the best overall, said so, when
+ * every candidate is rejected; a candidate without any p-value is never
  * rejected).  sp_fit_run calls this; it is public so a caller may change
  * the criterion and choose again. */
 void sp_fit_rank(sp_fit_result *r);

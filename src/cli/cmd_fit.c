@@ -114,8 +114,26 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
     int len = (int)strlen(r->cand[i].family->name);
     if (len > fw) fw = len;
   }
-  fprintf(out, "  %4s  %-*s %10s %10s %8s %8s %8s  %-22s %s\n", "rank", fw, "family", "AICc",
-          "BIC", "A² p", "D p", "W² p", "verdict", "parameters (± se)");
+  /* Verdicts first, for the column width ("²" is two bytes, one column). */
+  char (*verdict)[64] = calloc(r->ncand ? r->ncand : 1, sizeof *verdict);
+  if (!verdict) return;
+  int vw = 7;
+  for (size_t i = 0; i < r->ncand; i++) {
+    const sp_fit_candidate *c = &r->cand[i];
+    if (c->status != SP_FIT_OK) continue;
+    if ((long)i == r->chosen) snprintf(verdict[i], sizeof verdict[i], "chosen");
+    else if (c->rejected)
+      snprintf(verdict[i], sizeof verdict[i], "rejected (%s p<%g)",
+               c->judged_by == SP_FIT_GOF_W2 ? "W²" : c->judged_by == SP_FIT_GOF_D ? "D" : "A²",
+               r->opt.alpha);
+    else snprintf(verdict[i], sizeof verdict[i], "ok");
+    if (!c->converged)
+      strncat(verdict[i], ", not converged", sizeof verdict[i] - strlen(verdict[i]) - 1);
+    int len = (int)strlen(verdict[i]) - (strstr(verdict[i], "²") ? 1 : 0);
+    if (len > vw) vw = len;
+  }
+  fprintf(out, "  %4s  %-*s %10s %10s %8s %8s %8s  %-*s %s\n", "rank", fw, "family", "AICc",
+          "BIC", "A² p", "D p", "W² p", vw, "verdict", "parameters (± se)");
   /* In rank order, then the unranked (skipped, failed) in candidate order. */
   for (size_t pass = 0; pass < 2; pass++) {
     for (size_t want = 1; want <= (pass == 0 ? r->ncand : 1); want++) {
@@ -132,20 +150,14 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
         put_num(out, 10, c->aicc);
         put_num(out, 10, c->bic);
         for (int j = 0; j < SP_FIT_NGOF; j++) put_p(out, &l, &c->gof[j]);
-        char verdict[64];
-        if ((long)i == r->chosen) snprintf(verdict, sizeof verdict, "chosen");
-        else if (c->rejected)
-          snprintf(verdict, sizeof verdict, "rejected (A² p<%g)", r->opt.alpha);
-        else snprintf(verdict, sizeof verdict, "ok");
-        if (!c->converged) strncat(verdict, ", not converged", sizeof verdict - strlen(verdict) - 1);
-        /* "²" is two bytes but one column wide. */
-        int pad = 22 + (strstr(verdict, "²") ? 1 : 0);
-        fprintf(out, "  %-*s ", pad, verdict);
+        int pad = vw + (strstr(verdict[i], "²") ? 1 : 0);
+        fprintf(out, "  %-*s ", pad, verdict[i]);
         put_params(out, c);
         fputc('\n', out);
       }
     }
   }
+  free(verdict);
   if (r->chosen >= 0) {
     const sp_fit_candidate *c = &r->cand[r->chosen];
     fprintf(out, "\nChosen: %s (%s), method %s\n", c->family->name, c->family->title,
