@@ -16,6 +16,7 @@
 
 #include "scatterprop/dist.h"
 #include "scatterprop/fit.h"
+#include "scatterprop/ingest.h"
 #include "scatterprop/rng.h"
 
 /* ---- test families ---------------------------------------------------- */
@@ -81,6 +82,16 @@ static sp_status tn_mle(const double *x, size_t n, const int *fixed, double *t,
   return SP_OK;
 }
 
+/* The sample mean and s (n - 1 denominator): the estimators of the
+ * published normal-case tables (D'Agostino & Stephens 1986, section
+ * 4.8). */
+static sp_status tn_s(const double *x, size_t n, const int *fixed, double *t, sp_error *err)
+{
+  sp_status st = tn_mle(x, n, fixed, t, err);
+  if (!fixed[1]) t[1] *= sqrt((double)n / (double)(n - 1));
+  return st;
+}
+
 static const sp_family tnorm = {
   "tnorm", "test normal (general minimiser)", SP_FAMILY_FIT, 2, {"mean", "sd"},
   {SP_PARAM_REAL, SP_PARAM_POSITIVE}, {0.0, 1.0}, tn_check, tn_support, tn_logpdf,
@@ -89,6 +100,10 @@ static const sp_family tnorm_cf = {
   "tnorm_cf", "test normal (closed form)", SP_FAMILY_FIT, 2, {"mean", "sd"},
   {SP_PARAM_REAL, SP_PARAM_POSITIVE}, {0.0, 1.0}, tn_check, tn_support, tn_logpdf,
   tn_P, tn_Q, tn_qP, tn_qQ, tn_sample, tn_mean, tn_var, tn_start, tn_mle};
+static const sp_family tnorm_s = {
+  "tnorm_s", "test normal (mean and s)", SP_FAMILY_FIT, 2, {"mean", "sd"},
+  {SP_PARAM_REAL, SP_PARAM_POSITIVE}, {0.0, 1.0}, tn_check, tn_support, tn_logpdf,
+  tn_P, tn_Q, tn_qP, tn_qQ, tn_sample, tn_mean, tn_var, tn_start, tn_s};
 
 /* NIST StRD univariate datasets, built by the construction rule stated in
  * the NIST files: NumAcc2 = 1.2, then 500 pairs (1.1, 1.3); NumAcc4 =
@@ -332,12 +347,14 @@ static int cmp_d(const void *a, const void *b)
   return (x > y) - (x < y);
 }
 
-/* Critical values of A^2 with estimated parameters by parametric
- * bootstrap against D'Agostino & Stephens (1986), Goodness-of-Fit
- * Techniques, Table 4.7 (normal, mean and variance estimated: 5% point of
- * A*= A^2 (1 + 0.75/n + 2.25/n^2) is 0.752) and Table 4.11 (exponential
- * with the scale estimated, A^2 (1 + 0.6/n): 5% point 1.321), as read in
- * shared/REFERENCES.md.  These null distributions do not depend on the
+/* Critical value of A^2 with estimated parameters by parametric bootstrap
+ * against D'Agostino & Stephens (1986), Goodness-of-Fit Techniques, Table
+ * 4.7 (normal, mean and variance estimated: the 5% point of A* = A^2 (1 +
+ * 0.75/n + 2.25/n^2) is 0.752), as read in shared/REFERENCES.md.  The
+ * replicates are refitted with the table's estimators, the sample mean and
+ * s (n - 1 denominator): the test family tnorm_s.  With Stephens' 1974
+ * convention instead (0.787 / (1 + 4/n - 25/n^2)) this check fails
+ * (measured 0.943), as REFERENCES.md says it should.  These null distributions do not depend on the
  * parameter values, so the bootstrap of one sample is a simulation of the
  * null distribution itself.
  * Monte Carlo error bound: with B replicates the fraction of T_b at or
@@ -354,7 +371,7 @@ START_TEST(test_bootstrap_critical_normal)
   sp_rng_block_stream(&g, 5, 0, 0);
   for (int i = 0; i < N; i++) x[i] = 10.0 + 2.0 * sp_rng_normal(&g);
   sp_fit_candidate c;
-  fit_candidate_by_hand(&tnorm_cf, x, N, &c);
+  fit_candidate_by_hand(&tnorm_s, x, N, &c);
   static double st[3 * B];
   sp_error e;
   sp_error_clear(&e);
@@ -478,6 +495,294 @@ START_TEST(test_option_parsing)
 }
 END_TEST
 
+/* ---- with the registered families ---------------------------------------- */
+
+static const sp_family *fam(const char *name)
+{
+  const sp_family *f = sp_family_find(name);
+  ck_assert_msg(f != NULL, "the registry has no '%s' family", name);
+  return f;
+}
+
+static const sp_fit_candidate *cand(const sp_fit_result *r, const char *name)
+{
+  for (size_t i = 0; i < r->ncand; i++)
+    if (strcmp(r->cand[i].family->name, name) == 0) return &r->cand[i];
+  ck_abort_msg("no candidate %s", name);
+  return NULL;
+}
+
+/* NIST StRD PiDigits (tests/data/strd_pidigits.csv, n = 5000; certified
+ * mean 4.5348, s 2.86733906028871) read through ingest and fitted as a
+ * normal: the MLE of the mean is the certified mean and the MLE of sd is
+ * s * sqrt((n-1)/n) (closed form).  The digits are small integers, so the
+ * mean is exact to rounding (1e-14) and sd to the certified 15 digits. */
+START_TEST(test_nist_pidigits_normal)
+{
+  sp_ingest_options io;
+  sp_ingest_options_init(&io);
+  sp_table *t = NULL;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_table_read(SP_TEST_DATA_DIR "/strd_pidigits.csv", &io, &t, &e) == SP_OK,
+                "%s", e.msg);
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_grouped g;
+  ck_assert_msg(sp_fit_table(t, "y", NULL, &o, &g, &e) == SP_OK, "%s", e.msg);
+  ck_assert_int_eq(g.pooled.n, 5000);
+  const sp_fit_candidate *c = &g.pooled.cand[0];
+  ASSERT_REL(c->theta[0], 4.5348, 1e-14);
+  ASSERT_REL(c->theta[1], 2.86733906028871 * sqrt(4999.0 / 5000.0), 1e-13);
+  ck_assert_int_eq(g.pooled.chosen, 0);
+  sp_fit_grouped_clear(&g);
+  sp_table_free(t);
+}
+END_TEST
+
+/* Fixed parameters: k counts only the free ones in AIC = 2k - 2 logL,
+ * AICc = AIC + 2k(k+1)/(n-k-1), BIC = k ln n - 2 logL (formulas: Akaike
+ * 1974, Hurvich & Tsai 1989, Schwarz 1978), and the fixed value is kept.
+ * Every parameter fixed is k = 0: with the worked example above, A^2 =
+ * 3.208057 comes out of sp_fit_run itself. */
+START_TEST(test_fixed_counts)
+{
+  double x[10] = {0, 1, 1, 1, 1, 1, 1, 1, 1, 1};
+  const sp_family *nf = fam("normal");
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_error e;
+  sp_error_clear(&e);
+  for (int nfix = 0; nfix <= 2; nfix++) {
+    sp_fit_options oo = o;
+    if (nfix >= 1) sp_fit_options_fix(&oo, nf->param_names[0], 0.9, &e);
+    if (nfix >= 2) sp_fit_options_fix(&oo, nf->param_names[1], sqrt(0.1), &e);
+    sp_fit_result r;
+    ck_assert_msg(sp_fit_run(x, 10, &oo, &r, &e) == SP_OK, "%s", e.msg);
+    const sp_fit_candidate *c = &r.cand[0];
+    size_t k = 2 - (size_t)nfix;
+    ck_assert_int_eq(c->k, k);
+    double ll = sp_family_loglik(nf, c->theta, x, 10);
+    ASSERT_REL(c->loglik, ll, 1e-14);
+    ASSERT_REL(c->aic, 2.0 * k - 2.0 * ll, 1e-14);
+    ASSERT_REL(c->aicc, 2.0 * k - 2.0 * ll + 2.0 * k * (k + 1.0) / (10.0 - k - 1.0), 1e-14);
+    ASSERT_REL(c->bic, k * log(10.0) - 2.0 * ll, 1e-14);
+    if (nfix >= 1) ck_assert(c->theta[0] == 0.9 && c->fixed[0]);
+    else ASSERT_REL(c->theta[0], 0.9, 1e-15);
+    if (nfix == 2) {
+      ck_assert_int_eq(c->method, SP_FIT_METHOD_NONE);
+      ASSERT_ABS(c->gof[SP_FIT_GOF_A2].stat, 3.208057, 5e-7);
+      ck_assert(!c->cov_available);
+    }
+    sp_fit_result_clear(&r);
+  }
+  /* A fixed name no candidate has is a usage error naming it. */
+  sp_fit_options bad = o;
+  sp_fit_options_fix(&bad, "nosuch", 1.0, &e);
+  sp_fit_result r;
+  ck_assert_int_eq(sp_fit_run(x, 10, &bad, &r, &e), SP_EUSAGE);
+  ck_assert_msg(strstr(e.msg, "nosuch") != NULL, "%s", e.msg);
+}
+END_TEST
+
+/* weibull3 with the location fixed is the 2-parameter weibull of x - loc:
+ * same shape, scale and log-likelihood (identity of the densities). */
+START_TEST(test_weibull3_fixed_location)
+{
+  double x[80];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 17, 0, 0);
+  const sp_family *w2 = fam("weibull"), *w3 = fam("weibull3");
+  double th[2] = {1.7, 4.0};
+  w2->sample(th, &g, x, 80);
+  for (int i = 0; i < 80; i++) x[i] += 10.0;
+  int f3[3] = {0, 0, 1};
+  double t3[3] = {NAN, NAN, 9.5};
+  sp_fit_mle_info info;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_mle(w3, x, 80, f3, t3, &info, &e), SP_OK);
+  double y[80];
+  for (int i = 0; i < 80; i++) y[i] = x[i] - 9.5;
+  double t2[2];
+  int f2[2] = {0, 0};
+  ck_assert_int_eq(sp_fit_mle(w2, y, 80, f2, t2, &info, &e), SP_OK);
+  ASSERT_REL(t3[0], t2[0], 1e-12);
+  ASSERT_REL(t3[1], t2[1], 1e-12);
+  ASSERT_REL(sp_family_loglik(w3, t3, x, 80), sp_family_loglik(w2, t2, y, 80), 1e-12);
+}
+END_TEST
+
+/* Data from a 3-parameter Weibull with shape 0.8: the likelihood is
+ * unbounded as the location approaches min(x) and the profile has no
+ * interior maximum, so the fit falls back to maximum product of spacings
+ * (Cheng & Amin 1983) and says so.  The MPS estimate must lie below the
+ * data, with a shape in a wide band around 0.8 (0.55 .. 1.05 at n = 200;
+ * the ML-type asymptotic sd of a Weibull shape is about 0.78 shape /
+ * sqrt(n) = 0.044 here, from memory, so the band is over 5 sd either
+ * side), and the spacings objective must be maximal there against small
+ * moves of each parameter. */
+START_TEST(test_weibull3_mps)
+{
+  enum { N = 200 };
+  double x[N];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 23, 0, 0);
+  const sp_family *w3 = fam("weibull3");
+  double th[3] = {0.8, 2.0, 10.0};
+  w3->sample(th, &g, x, N);
+  double xmin = x[0];
+  for (int i = 1; i < N; i++) xmin = fmin(xmin, x[i]);
+  const char *fams[1] = {"weibull3"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run(x, N, &o, &r, &e) == SP_OK, "%s", e.msg);
+  const sp_fit_candidate *c = &r.cand[0];
+  ck_assert_int_eq(c->status, SP_FIT_OK);
+  ck_assert_int_eq(c->method, SP_FIT_METHOD_MPS);
+  ck_assert_str_eq(sp_fit_method_name(c->method), "MPS");
+  ck_assert_msg(strstr(c->reason, "maximum product of spacings") != NULL, "%s", c->reason);
+  ck_assert(c->converged);
+  ck_assert(c->theta[2] < xmin);
+  ck_assert_msg(c->theta[0] > 0.55 && c->theta[0] < 1.05, "shape %g", c->theta[0]);
+  /* The spacings objective, recomputed here from its definition. */
+  double s[N];
+  memcpy(s, x, sizeof s);
+  qsort(s, N, sizeof *s, cmp_d);
+  double best = 0;
+  for (int q = -1; q < 3; q++) {
+    double t[3];
+    memcpy(t, c->theta, sizeof t);
+    if (q >= 0) t[q] = q == 2 ? t[q] - 1e-4 * (xmin - t[q]) : t[q] * (1.0 + 1e-4);
+    double m = 0, Pp = 0;
+    for (int i = 0; i <= N; i++) {
+      double P = i < N ? w3->cdf_P(t, s[i]) : 1.0;
+      m += log(P - Pp);
+      Pp = P;
+    }
+    if (q < 0) best = m;
+    else ck_assert_msg(m <= best + 1e-9, "move %d raises the spacings objective", q);
+  }
+  sp_fit_result_clear(&r);
+}
+END_TEST
+
+/* A family whose support excludes the data is skipped with the family's
+ * own reason; the others are fitted and one is chosen. */
+START_TEST(test_skipped_family)
+{
+  double x[30];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 29, 0, 0);
+  for (int i = 0; i < 30; i++) x[i] = sp_rng_normal(&g);
+  const char *fams[3] = {"normal", "lognormal", "weibull"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 3;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run(x, 30, &o, &r, &e) == SP_OK, "%s", e.msg);
+  const sp_fit_candidate *ln = cand(&r, "lognormal"), *wb = cand(&r, "weibull");
+  ck_assert_int_eq(ln->status, SP_FIT_SKIPPED);
+  ck_assert_int_eq(wb->status, SP_FIT_SKIPPED);
+  ck_assert_msg(strstr(ln->reason, "lognormal") != NULL, "%s", ln->reason);
+  ck_assert_int_eq(ln->rank, 0);
+  ck_assert_int_eq(r.chosen, 0);
+  ck_assert_int_eq(cand(&r, "normal")->rank, 1);
+  sp_fit_result_clear(&r);
+  /* Unknown family: usage error. */
+  const char *badf[1] = {"nosuch"};
+  o.families = badf;
+  o.nfamilies = 1;
+  ck_assert_int_eq(sp_fit_run(x, 30, &o, &r, &e), SP_EUSAGE);
+}
+END_TEST
+
+/* Exponential with the scale estimated (rate by ML, the table's
+ * estimator): D'Agostino & Stephens (1986), Goodness-of-Fit Techniques,
+ * Table 4.11 (as read in shared/REFERENCES.md, 1986 revision): 5% point of
+ * A^2 (1 + 0.6/n) is 1.321.  Same construction and Monte Carlo bound as
+ * the normal case (binomial sd 0.00154 at B = 20000, 4 sd allowed). */
+START_TEST(test_bootstrap_critical_exponential)
+{
+  enum { N = 20, B = 20000 };
+  const sp_family *ex = fam("exponential");
+  double x[N];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 31, 0, 0);
+  double rate[1] = {0.5};
+  ex->sample(rate, &g, x, N);
+  sp_fit_candidate c;
+  fit_candidate_by_hand(ex, x, N, &c);
+  static double st[3 * B];
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_bootstrap(&c, N, B, 77, 0, 0, st, &e), SP_OK);
+  double crit = 1.321 / (1.0 + 0.6 / N);
+  int below = 0;
+  for (int b = 0; b < B; b++) below += st[3 * b] <= crit;
+  double frac = below / (double)B, sdb = sqrt(0.95 * 0.05 / B);
+  ck_assert_msg(fabs(frac - 0.95) <= 4 * sdb, "P(A2 <= %.4f) = %.4f, want 0.95 +- %.4f",
+                crit, frac, 4 * sdb);
+}
+END_TEST
+
+/* Per lot: each lot fitted alone, and pooled; missing values dropped and
+ * counted per lot; the pooled fit equals a direct fit of all values. */
+START_TEST(test_grouped)
+{
+  enum { N = 60 };
+  double x[N];
+  const char *lot[N];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 37, 0, 0);
+  for (int i = 0; i < N; i++) {
+    lot[i] = i % 3 == 0 ? "A" : (i % 3 == 1 ? "B" : "");
+    x[i] = (i % 3 == 0 ? 10.0 : 12.0) + sp_rng_normal(&g);
+  }
+  x[3] = NAN; /* lot A */
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_grouped gr;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run_grouped(x, lot, N, &o, &gr, &e) == SP_OK, "%s", e.msg);
+  ck_assert_int_eq(gr.ngroups, 2);
+  ck_assert_str_eq(gr.groups[0].label, "A");
+  ck_assert_int_eq(gr.groups[0].nmissing, 1);
+  ck_assert_int_eq(gr.groups[0].fit.n, 19);
+  ck_assert_int_eq(gr.groups[1].fit.n, 20);
+  ck_assert_int_eq(gr.pooled.n, 59);
+  ck_assert_int_eq(gr.pooled_missing, 1);
+  double a = 0;
+  for (int i = 0; i < N; i += 3)
+    if (!isnan(x[i])) a += x[i];
+  ASSERT_REL(gr.groups[0].fit.cand[0].theta[0], a / 19.0, 1e-14);
+  sp_fit_grouped_clear(&gr);
+}
+END_TEST
+
 static Suite *fit_suite(void)
 {
   Suite *s = suite_create("fit");
@@ -492,6 +797,16 @@ static Suite *fit_suite(void)
   tcase_set_timeout(tc, 120);
   tcase_add_test(tc, test_bootstrap_threads);
   tcase_add_test(tc, test_bootstrap_critical_normal);
+  tcase_add_test(tc, test_bootstrap_critical_exponential);
+  suite_add_tcase(s, tc);
+  tc = tcase_create("families");
+  tcase_set_timeout(tc, 120);
+  tcase_add_test(tc, test_nist_pidigits_normal);
+  tcase_add_test(tc, test_fixed_counts);
+  tcase_add_test(tc, test_weibull3_fixed_location);
+  tcase_add_test(tc, test_weibull3_mps);
+  tcase_add_test(tc, test_skipped_family);
+  tcase_add_test(tc, test_grouped);
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
