@@ -638,13 +638,23 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
     sp_fit_candidate *c = &out->cand[i];
     st = fit_candidate(fams[i], x, sorted, n, opt, c, w, err);
     if (st != SP_OK || c->status != SP_FIT_OK || opt->pvalue == SP_FIT_PVALUE_NONE) continue;
-    int napprox = 0;
-    if (opt->pvalue == SP_FIT_PVALUE_AUTO || opt->pvalue == SP_FIT_PVALUE_APPROX)
-      napprox = sp_fit_gof_approx(c);
-    if (opt->pvalue == SP_FIT_PVALUE_BOOTSTRAP ||
-        (opt->pvalue == SP_FIT_PVALUE_AUTO && napprox < SP_FIT_NGOF))
+    if (opt->pvalue == SP_FIT_PVALUE_BOOTSTRAP) {
       st = sp_fit_bootstrap(c, n, opt->bootstrap_B, opt->seed, (uint32_t)i, opt->threads,
                             NULL, err);
+      continue;
+    }
+    int napprox = sp_fit_gof_approx(c, sorted, n, w->P, w->Q);
+    if (opt->pvalue == SP_FIT_PVALUE_AUTO && napprox < SP_FIT_NGOF) {
+      /* The bootstrap for the statistics without a published method; the
+       * approximations are kept where they exist. */
+      sp_fit_candidate b = *c;
+      st = sp_fit_bootstrap(&b, n, opt->bootstrap_B, opt->seed, (uint32_t)i, opt->threads,
+                            NULL, err);
+      if (st != SP_OK) continue;
+      c->bootstrap_failed = b.bootstrap_failed;
+      for (int j = 0; j < SP_FIT_NGOF; j++)
+        if (!isfinite(c->gof[j].p)) c->gof[j] = b.gof[j];
+    }
   }
   free(sorted);
   sp_fit_ws_free(w);

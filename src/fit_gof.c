@@ -19,30 +19,8 @@
 
 #include <omp.h>
 
+#include "scatterprop/gof.h"
 #include "scatterprop/rng.h"
-
-/* A^2 = -n - (1/n) sum (2i-1) [ln P_i + ln Q_{n+1-i}],
- * D = max_i max(i/n - P_i, P_i - (i-1)/n),
- * W^2 = 1/(12n) + sum (P_i - (2i-1)/(2n))^2
- * (Stephens, M.A. (1974). EDF statistics for goodness of fit and some
- * comparisons. JASA 69(347), 730-737, eqs. 2-4). */
-static void gof_stats(const double *P, const double *Q, size_t n,
-                      sp_fit_gof *gof)
-{
-  double a = 0.0, d = 0.0, w = 0.0, dn = (double)n;
-  for (size_t i = 0; i < n; i++) {
-    double k = (double)(2 * i + 1);
-    a += k * (log(P[i]) + log(Q[n - 1 - i]));
-    double dp = (double)(i + 1) / dn - P[i], dm = P[i] - (double)i / dn;
-    if (dp > d) d = dp;
-    if (dm > d) d = dm;
-    double r = P[i] - k / (2.0 * dn);
-    w += r * r;
-  }
-  gof[SP_FIT_GOF_A2].stat = -dn - a / dn;
-  gof[SP_FIT_GOF_D].stat = d;
-  gof[SP_FIT_GOF_W2].stat = 1.0 / (12.0 * dn) + w;
-}
 
 void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
                        const double *sorted, size_t n, double *P, double *Q,
@@ -52,7 +30,9 @@ void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
     P[i] = fam->cdf_P(theta, sorted[i]);
     Q[i] = fam->cdf_Q(theta, sorted[i]);
   }
-  gof_stats(P, Q, n, gof);
+  gof[SP_FIT_GOF_A2].stat = sp_gof_ad_stat(P, Q, n);
+  gof[SP_FIT_GOF_D].stat = sp_gof_ks_stat(P, n, NULL, NULL);
+  gof[SP_FIT_GOF_W2].stat = sp_gof_cvm_stat(P, n);
 }
 
 sp_status sp_fit_gof_stats(const sp_family *fam, const double *theta,
@@ -68,10 +48,83 @@ sp_status sp_fit_gof_stats(const sp_family *fam, const double *theta,
   return SP_OK;
 }
 
-int sp_fit_gof_approx(sp_fit_candidate *c)
+/* Published p-value approximations for estimated parameters, by family
+ * name: the gof module's cases (D'Agostino & Stephens 1986; Stephens 1974,
+ * 1977, 1979) and the family they apply to when every parameter was
+ * estimated by maximum likelihood.  lognormal is the normal case on ln x
+ * and weibull the extreme-value case on ln x: the statistics are
+ * unchanged by the monotone transformation, because F(x) is the same
+ * number either way.  The normal-case tables were made with the sample
+ * standard deviation s (n - 1 denominator), so for normal and lognormal
+ * the statistics entered in the tables are recomputed with sd scaled by
+ * sqrt(n / (n - 1)) (s_param names that parameter). */
+static const struct {
+  const char *family;
+  sp_gof_case gcase;
+  const char *s_param;
+} approx_table[] = {
+  {"normal", SP_GOF_CASE_NORMAL, "sd"},
+  {"lognormal", SP_GOF_CASE_NORMAL, "sdlog"},
+  {"exponential", SP_GOF_CASE_EXPONENTIAL, NULL},
+  {"weibull", SP_GOF_CASE_EXTREME_VALUE, NULL},
+  {"gumbel_max", SP_GOF_CASE_EXTREME_VALUE, NULL},
+  {"gumbel_min", SP_GOF_CASE_EXTREME_VALUE, NULL},
+  {"logistic", SP_GOF_CASE_LOGISTIC, NULL},
+};
+
+static void set_p(sp_fit_gof *g, const sp_gof_pvalue *pv, const char *extra)
 {
-  (void)c;
-  return 0;
+  g->p = pv->p;
+  g->bound = pv->kind == SP_GOF_P_BELOW ? -1 : pv->kind == SP_GOF_P_ABOVE ? 1 : 0;
+  snprintf(g->method, sizeof g->method, "%s%s", pv->method, extra);
+}
+
+int sp_fit_gof_approx(sp_fit_candidate *c, const double *sorted, size_t n, double *P,
+                      double *Q)
+{
+  const sp_family *f = c->family;
+  sp_gof_case gcase = SP_GOF_CASE_FULLY_SPECIFIED;
+  const char *s_param = NULL;
+  if (c->k > 0) {
+    if (c->k != f->nparam) return 0;
+    size_t i = 0, m = sizeof approx_table / sizeof approx_table[0];
+    while (i < m && strcmp(approx_table[i].family, f->name) != 0) i++;
+    if (i == m) return 0;
+    gcase = approx_table[i].gcase;
+    s_param = approx_table[i].s_param;
+  }
+  sp_fit_gof g[SP_FIT_NGOF];
+  memcpy(g, c->gof, sizeof g);
+  const char *extra = "";
+  if (s_param) {
+    int j = sp_family_param_index(f, s_param);
+    if (j < 0 || n < 2) return 0;
+    double th[SP_FAMILY_MAX_PARAMS];
+    memcpy(th, c->theta, sizeof th);
+    th[j] *= sqrt((double)n / (double)(n - 1));
+    sp_fit_gof_sorted(f, th, sorted, n, P, Q, g);
+    extra = "; statistic recomputed with s (n - 1 denominator)";
+  }
+  sp_gof_pvalue pv;
+  sp_error e;
+  int got = 0;
+  e.code = SP_OK;
+  if (sp_gof_ad_pvalue(g[SP_FIT_GOF_A2].stat, n, gcase, &pv, &e) == SP_OK &&
+      pv.kind != SP_GOF_P_NONE) {
+    set_p(&c->gof[SP_FIT_GOF_A2], &pv, extra);
+    got++;
+  }
+  if (sp_gof_ks_pvalue(g[SP_FIT_GOF_D].stat, n, gcase, &pv, &e) == SP_OK &&
+      pv.kind != SP_GOF_P_NONE) {
+    set_p(&c->gof[SP_FIT_GOF_D], &pv, extra);
+    got++;
+  }
+  if (sp_gof_cvm_pvalue(g[SP_FIT_GOF_W2].stat, n, gcase, &pv, &e) == SP_OK &&
+      pv.kind != SP_GOF_P_NONE) {
+    set_p(&c->gof[SP_FIT_GOF_W2], &pv, extra);
+    got++;
+  }
+  return got;
 }
 
 sp_status sp_fit_bootstrap(sp_fit_candidate *c, size_t n, size_t B, uint64_t seed,
@@ -147,6 +200,7 @@ sp_status sp_fit_bootstrap(sp_fit_candidate *c, size_t n, size_t B, uint64_t see
       continue;
     }
     c->gof[j].p = (1.0 + (double)ge[j]) / ((double)bok + 1.0);
+    c->gof[j].bound = 0;
     snprintf(c->gof[j].method, sizeof c->gof[j].method,
              "parametric bootstrap, %zu refitted replicates, seed %llu", bok,
              (unsigned long long)seed);

@@ -170,6 +170,9 @@ static json_t *candidate_obj(wctx *w, const sp_fit_candidate *c)
       json_t *s = obj(w);
       set(w, s, "stat", num(w, c->gof[j].stat));
       set(w, s, "p", num(w, c->gof[j].p));
+      set(w, s, "bound", c->gof[j].bound < 0   ? str(w, "below")
+                         : c->gof[j].bound > 0 ? str(w, "above")
+                                               : json_null());
       set(w, s, "method", c->gof[j].method[0] ? str(w, c->gof[j].method) : json_null());
       set(w, g, gof_keys[j], s);
     }
@@ -625,6 +628,10 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
     snprintf(pp, sizeof pp, "%s.p", pg);
     TRY(need_num(r, st, "p", pp, 1, &v));
     if (isfinite(v) && !(v >= 0 && v <= 1)) return bad(r, pp, "must be in [0, 1]");
+    snprintf(pp, sizeof pp, "%s.bound", pg);
+    TRY(need_str(r, st, "bound", pp, 1, &s));
+    static const char *const bounds[] = {"below", "above"};
+    if (s && !one_of(s, bounds, 2)) return bad(r, pp, "must be below, above or null");
     snprintf(pp, sizeof pp, "%s.method", pg);
     TRY(need_str(r, st, "method", pp, 1, &s));
     if (isfinite(v) && !s) return bad(r, pp, "must name the method of a given p-value");

@@ -113,6 +113,8 @@ sp_status sp_fit_options_fix_parse(sp_fit_options *o, const char *text,
 typedef struct {
   double stat;                   /* the statistic, unmodified */
   double p;                      /* NAN when not computed */
+  int bound;                     /* 0: p is a value; -1: the p-value is below p
+                                    (p < 0.01); +1: above p (p > 0.25) */
   char method[SP_FIT_TEXT_MAX];  /* how p was obtained; "" when not computed */
 } sp_fit_gof;
 

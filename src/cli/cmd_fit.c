@@ -87,6 +87,7 @@ static void put_p(FILE *out, legend *l, const sp_fit_gof *g)
   }
   char mark = legend_mark(l, g->method);
   if (g->p < 0.001) fprintf(out, " <0.001%c", mark);
+  else if (g->bound) fprintf(out, " %c%5.3f%c", g->bound < 0 ? '<' : '>', g->p, mark);
   else fprintf(out, " %6.3f%c", g->p, mark);
 }
 
