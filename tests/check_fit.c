@@ -715,6 +715,78 @@ START_TEST(test_skipped_family)
 }
 END_TEST
 
+/* D'Agostino & Stephens (1986), Table 4.9: p-value of the normal case
+ * from A* = A^2 (1 + 0.75/n + 2.25/n^2) (as read in shared/REFERENCES.md). */
+static double ds_table49(double a2, double n)
+{
+  double a = a2 * (1.0 + 0.75 / n + 2.25 / (n * n));
+  if (a < 0.2) return 1.0 - exp(-13.436 + 101.14 * a - 223.73 * a * a);
+  if (a < 0.34) return 1.0 - exp(-8.318 + 42.796 * a - 59.938 * a * a);
+  if (a < 0.6) return exp(0.9177 - 4.279 * a - 1.38 * a * a);
+  return exp(1.2937 - 5.709 * a + 0.0186 * a * a);
+}
+
+/* The normal-case approximation is entered with the table's estimator s
+ * (n - 1 denominator), not the MLE: the p-value must be Table 4.9's
+ * formula at A^2 computed with (mean, s).  The worked example (A^2 =
+ * 3.208057 with s) is far in the tail, where the gof module reports the
+ * bound p < 1e-4 (SP_GOF_P_FLOOR).  In auto mode a family with an
+ * approximation for A^2 only (weibull: the extreme-value case) gets D and
+ * W^2 from the bootstrap, each p-value naming its method. */
+START_TEST(test_approximations)
+{
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_APPROX;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  double x[10] = {0, 1, 1, 1, 1, 1, 1, 1, 1, 1};
+  ck_assert_msg(sp_fit_run(x, 10, &o, &r, &e) == SP_OK, "%s", e.msg);
+  ck_assert(r.cand[0].gof[SP_FIT_GOF_A2].p == 1e-4 && r.cand[0].gof[SP_FIT_GOF_A2].bound == -1);
+  ck_assert(r.cand[0].rejected);
+  sp_fit_result_clear(&r);
+
+  double z[15];
+  sp_pcg64 gz;
+  sp_rng_block_stream(&gz, 43, 0, 0);
+  for (int i = 0; i < 15; i++) z[i] = 3.0 + exp(0.4 * sp_rng_normal(&gz));
+  ck_assert_msg(sp_fit_run(z, 15, &o, &r, &e) == SP_OK, "%s", e.msg);
+  const sp_fit_candidate *c = &r.cand[0];
+  double ts[2] = {c->theta[0], c->theta[1] * sqrt(15.0 / 14.0)};
+  sp_fit_gof gs[SP_FIT_NGOF];
+  ck_assert_int_eq(sp_fit_gof_stats(&tnorm, ts, z, 15, gs, &e), SP_OK);
+  double want = ds_table49(gs[SP_FIT_GOF_A2].stat, 15.0);
+  ck_assert_msg(want > 0.001 && want < 0.9, "pick data with a moderate p (%g)", want);
+  ASSERT_REL(c->gof[SP_FIT_GOF_A2].p, want, 1e-12);
+  ck_assert(strstr(c->gof[SP_FIT_GOF_A2].method, "Table 4.9") != NULL);
+  ck_assert(strstr(c->gof[SP_FIT_GOF_A2].method, "recomputed with s") != NULL);
+  sp_fit_result_clear(&r);
+
+  double y[40];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 41, 0, 0);
+  double th[2] = {2.0, 5.0};
+  fam("weibull")->sample(th, &g, y, 40);
+  fams[0] = "weibull";
+  o.pvalue = SP_FIT_PVALUE_AUTO;
+  o.bootstrap_B = 99;
+  ck_assert_msg(sp_fit_run(y, 40, &o, &r, &e) == SP_OK, "%s", e.msg);
+  c = &r.cand[0];
+  ck_assert_msg(strstr(c->gof[SP_FIT_GOF_A2].method, "Stephens 1977") != NULL, "%s",
+                c->gof[SP_FIT_GOF_A2].method);
+  ck_assert(strstr(c->gof[SP_FIT_GOF_D].method, "bootstrap, 99 refitted") != NULL);
+  ck_assert(strstr(c->gof[SP_FIT_GOF_W2].method, "bootstrap") != NULL);
+  /* A bootstrap p-value is a multiple of 1/(B + 1). */
+  double k = c->gof[SP_FIT_GOF_D].p * 100.0;
+  ASSERT_ABS(k, round(k), 1e-9);
+  sp_fit_result_clear(&r);
+}
+END_TEST
+
 /* Exponential with the scale estimated (rate by ML, the table's
  * estimator): D'Agostino & Stephens (1986), Goodness-of-Fit Techniques,
  * Table 4.11 (as read in shared/REFERENCES.md, 1986 revision): 5% point of
@@ -807,6 +879,7 @@ static Suite *fit_suite(void)
   tcase_add_test(tc, test_weibull3_mps);
   tcase_add_test(tc, test_skipped_family);
   tcase_add_test(tc, test_grouped);
+  tcase_add_test(tc, test_approximations);
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
