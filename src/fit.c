@@ -295,22 +295,27 @@ sp_status sp_fit_mle_ws(const sp_family *fam, const double *x, size_t n,
                    w->nmax, n);
   if (!fam->fit_start)
     return sp_fail(err, SP_EUSAGE, "%s: the family offers no starting values", fam->name);
-  sp_status st = fam->fit_start(x, n, fx, theta, err);
-  if (st != SP_OK) return st;
-  for (size_t p = 0; p < fam->nparam; p++)
-    if (fx[p]) theta[p] = keep[p];
+  sp_fit_special special = find_special(fam);
+  sp_status st;
+  /* A family solver needs no starting values (dist.h: fit_mle reads only
+   * the fixed entries of theta) and checks the data itself, so fit_start
+   * runs only for the other estimators, or when the solver gives up. */
+  int direct = k > 0 && !special && fam->fit_mle;
+  if (!direct) {
+    st = fam->fit_start(x, n, fx, theta, err);
+    if (st != SP_OK) return st;
+    for (size_t p = 0; p < fam->nparam; p++)
+      if (fx[p]) theta[p] = keep[p];
+  }
 
   if (k == 0) {
     info->method = SP_FIT_METHOD_NONE;
     info->converged = 1;
   } else {
-    sp_fit_special special = find_special(fam);
     if (special) {
       st = special(fam, x, n, fx, theta, info, w, err);
       if (st != SP_OK) return st;
     } else if (fam->fit_mle) {
-      double start[SP_FAMILY_MAX_PARAMS];
-      memcpy(start, theta, fam->nparam * sizeof *theta);
       sp_error e;
       sp_error_clear(&e);
       st = fam->fit_mle(x, n, fx, theta, &e);
@@ -320,7 +325,11 @@ sp_status sp_fit_mle_ws(const sp_family *fam, const double *x, size_t n,
       } else if (st == SP_ENUMERIC) {
         /* The family's solver gave up: the general minimiser tries from
          * the starting values, and the note keeps the solver's reason. */
-        memcpy(theta, start, fam->nparam * sizeof *theta);
+        for (size_t p = 0; p < fam->nparam; p++) theta[p] = keep[p];
+        st = fam->fit_start(x, n, fx, theta, err);
+        if (st != SP_OK) return st;
+        for (size_t p = 0; p < fam->nparam; p++)
+          if (fx[p]) theta[p] = keep[p];
         st = fit_general(fam, x, n, fx, theta, info, w, err);
         if (st != SP_OK) return st;
         char note[SP_FIT_TEXT_MAX];

@@ -61,9 +61,6 @@ static double profile(prof *P, double s)
   memcpy(P->theta2, P->keep2, sizeof P->keep2);
   sp_error e;
   sp_error_clear(&e);
-  if (P->w2->fit_start(P->y, P->n, P->fixed2, P->theta2, &e) != SP_OK) return -INFINITY;
-  for (size_t p = 0; p < P->w2->nparam; p++)
-    if (P->fixed2[p]) P->theta2[p] = P->keep2[p];
   if (P->w2->fit_mle(P->y, P->n, P->fixed2, P->theta2, &e) != SP_OK) return -INFINITY;
   double nll = sp_fit_negloglik(P->w2, P->theta2, P->y, P->n, NULL);
   return isfinite(nll) ? -nll : -INFINITY;
