@@ -12,6 +12,8 @@
  *          the dimension of a model. Ann. Statist. 6(2), 461-464). */
 #include "fit_internal.h"
 
+#include "scatterprop/stats.h"
+
 #include <float.h>
 #include <math.h>
 #include <stdlib.h>
@@ -222,10 +224,13 @@ static int scale_mask(const sp_family *fam, const double *theta, const double *x
 /* The power of two nearest the median of |x|. */
 static double robust_factor(const double *x, size_t n, double *scratch)
 {
-  for (size_t i = 0; i < n; i++) scratch[i] = fabs(x[i]);
-  sp_fit_sort(scratch, n);
-  double m = scratch[n / 2];
-  if (!(m > 0)) m = scratch[n - 1];
+  double big = 0.0;
+  for (size_t i = 0; i < n; i++) {
+    scratch[i] = fabs(x[i]);
+    if (scratch[i] > big) big = scratch[i];
+  }
+  double m = sp_select(scratch, n, n / 2);
+  if (!(m > 0)) m = big;
   if (!(m > 0) || !isfinite(m)) return 1.0;
   return ldexp(1.0, (int)lround(log2(m)));
 }

@@ -13,3 +13,11 @@ add_executable(bench_fit ${CMAKE_CURRENT_SOURCE_DIR}/bench/bench_fit.c)
 target_link_libraries(bench_fit PRIVATE scatterprop_lib)
 target_compile_definitions(bench_fit PRIVATE _POSIX_C_SOURCE=200809L)
 sp_warnings(bench_fit)
+
+# The command on the demo data: the ranked table, the choice and its
+# reason, the caution and the p-value legend must all be printed.
+add_test(NAME fit_cli_table
+  COMMAND scatterprop fit ${PROJECT_SOURCE_DIR}/data/wire_d.csv --column wire_d
+          --families normal,lognormal,weibull,gumbel_min --bootstrap 99)
+set_tests_properties(fit_cli_table PROPERTIES TIMEOUT 60
+  PASS_REGULAR_EXPRESSION "rank +family.*Chosen: [a-z_0-9]+ .*why: [a-z_0-9]+: lowest AICc.*p-values:.*CAUTION")
