@@ -441,9 +441,9 @@ static int one_of(const char *s, const char *const *words, size_t n)
 static sp_status check_family(rctx *r, const json_t *o, const char *path,
                               const sp_family **out)
 {
-  char p[256];
+  char p[512];
   const char *name = NULL;
-  snprintf(p, sizeof p, "%s.family", path);
+  snprintf(p, sizeof p, "%.200s.family", path);
   TRY(need_str(r, o, "family", p, 0, &name));
   *out = sp_family_find(name);
   if (!*out) return bad(r, p, "names an unknown family '%s'", name);
@@ -455,13 +455,13 @@ static sp_status check_family(rctx *r, const json_t *o, const char *path,
 static sp_status check_params(rctx *r, const json_t *o, const char *key, const char *path,
                               const sp_family *f, int nullable, double *out)
 {
-  char p[256];
+  char p[512];
   json_t *v = NULL;
-  snprintf(p, sizeof p, "%s.%s", path, key);
+  snprintf(p, sizeof p, "%.200s.%s", path, key);
   TRY(need_obj(r, o, key, p, &v));
   for (size_t q = 0; q < f->nparam; q++) {
-    char pp[320];
-    snprintf(pp, sizeof pp, "%s.%s", p, f->param_names[q]);
+    char pp[512];
+    snprintf(pp, sizeof pp, "%.200s.%s", p, f->param_names[q]);
     double x;
     TRY(need_num(r, v, f->param_names[q], pp, nullable, &x));
     if (out) out[q] = x;
@@ -471,8 +471,8 @@ static sp_status check_params(rctx *r, const json_t *o, const char *key, const c
   json_object_foreach(v, k, val) {
     (void)val;
     if (sp_family_param_index(f, k) < 0) {
-      char pp[320];
-      snprintf(pp, sizeof pp, "%s.%s", p, k);
+      char pp[512];
+      snprintf(pp, sizeof pp, "%.200s.%s", p, k);
       return bad(r, pp, "is not a parameter of %s", f->name);
     }
   }
@@ -482,15 +482,15 @@ static sp_status check_params(rctx *r, const json_t *o, const char *key, const c
 static sp_status check_fixed(rctx *r, const json_t *o, const char *path, const sp_family *f,
                              int *fixed)
 {
-  char p[256];
+  char p[512];
   json_t *a = NULL;
-  snprintf(p, sizeof p, "%s.fixed", path);
+  snprintf(p, sizeof p, "%.200s.fixed", path);
   TRY(need_arr(r, o, "fixed", p, &a));
   size_t i;
   json_t *v;
   json_array_foreach(a, i, v) {
-    char pp[300];
-    snprintf(pp, sizeof pp, "%s[%zu]", p, i);
+    char pp[512];
+    snprintf(pp, sizeof pp, "%.200s[%zu]", p, i);
     if (!json_is_string(v)) return bad(r, pp, "must be a string");
     int q = sp_family_param_index(f, json_string_value(v));
     if (q < 0) return bad(r, pp, "is not a parameter of %s", f->name);
@@ -503,16 +503,16 @@ static sp_status check_cov(rctx *r, const json_t *o, const char *path, const sp_
                            const int *fixed, int *avail,
                            double cov[SP_FAMILY_MAX_PARAMS][SP_FAMILY_MAX_PARAMS])
 {
-  char p[256];
-  snprintf(p, sizeof p, "%s.covariance", path);
+  char p[512];
+  snprintf(p, sizeof p, "%.200s.covariance", path);
   json_t *c = field(o, "covariance");
   if (!c) return bad(r, p, "is missing");
   *avail = 0;
   if (json_is_null(c)) return SP_OK;
   if (!json_is_object(c)) return bad(r, p, "must be an object or null");
-  char pn[300], pm[300];
-  snprintf(pn, sizeof pn, "%s.params", p);
-  snprintf(pm, sizeof pm, "%s.matrix", p);
+  char pn[512], pm[512];
+  snprintf(pn, sizeof pn, "%.200s.params", p);
+  snprintf(pm, sizeof pm, "%.200s.matrix", p);
   json_t *names = NULL, *m = NULL;
   TRY(need_arr(r, c, "params", pn, &names));
   TRY(need_arr(r, c, "matrix", pm, &m));
@@ -524,8 +524,8 @@ static sp_status check_cov(rctx *r, const json_t *o, const char *path, const sp_
   int idx[SP_FAMILY_MAX_PARAMS];
   for (size_t i = 0; i < k; i++) {
     json_t *v = json_array_get(names, i);
-    char pp[320];
-    snprintf(pp, sizeof pp, "%s[%zu]", pn, i);
+    char pp[512];
+    snprintf(pp, sizeof pp, "%.200s[%zu]", pn, i);
     if (!json_is_string(v)) return bad(r, pp, "must be a string");
     idx[i] = sp_family_param_index(f, json_string_value(v));
     if (idx[i] < 0 || fixed[idx[i]])
@@ -534,15 +534,15 @@ static sp_status check_cov(rctx *r, const json_t *o, const char *path, const sp_
   if (json_array_size(m) != k) return bad(r, pm, "must have %zu rows", k);
   for (size_t i = 0; i < k; i++) {
     json_t *row = json_array_get(m, i);
-    char pr[320];
-    snprintf(pr, sizeof pr, "%s[%zu]", pm, i);
+    char pr[512];
+    snprintf(pr, sizeof pr, "%.200s[%zu]", pm, i);
     if (!json_is_array(row) || json_array_size(row) != k)
       return bad(r, pr, "must be an array of %zu numbers", k);
     for (size_t j = 0; j < k; j++) {
       json_t *v = json_array_get(row, j);
       if (!json_is_number(v)) {
-        char pe[340];
-        snprintf(pe, sizeof pe, "%s[%zu]", pr, j);
+        char pe[512];
+        snprintf(pe, sizeof pe, "%.200s[%zu]", pr, j);
         return bad(r, pe, "must be a number");
       }
       cov[idx[i]][idx[j]] = json_number_value(v);
@@ -551,14 +551,14 @@ static sp_status check_cov(rctx *r, const json_t *o, const char *path, const sp_
   for (size_t i = 0; i < k; i++)
     for (size_t j = 0; j < i; j++)
       if (cov[idx[i]][idx[j]] != cov[idx[j]][idx[i]]) {
-        char pe[340];
-        snprintf(pe, sizeof pe, "%s[%zu][%zu]", pm, i, j);
+        char pe[512];
+        snprintf(pe, sizeof pe, "%.200s[%zu][%zu]", pm, i, j);
         return bad(r, pe, "must equal its transpose entry (the matrix is symmetric)");
       }
   for (size_t i = 0; i < k; i++)
     if (!(cov[idx[i]][idx[i]] > 0)) {
-      char pe[340];
-      snprintf(pe, sizeof pe, "%s[%zu][%zu]", pm, i, i);
+      char pe[512];
+      snprintf(pe, sizeof pe, "%.200s[%zu][%zu]", pm, i, i);
       return bad(r, pe, "must be a positive variance");
     }
   *avail = 1;
@@ -570,16 +570,16 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
   if (!json_is_object(c)) return bad(r, path, "must be an object");
   const sp_family *f;
   TRY(check_family(r, c, path, &f));
-  char p[320];
+  char p[512];
   const char *status = NULL, *s = NULL;
   static const char *const statuses[] = {"ok", "skipped", "failed"};
-  snprintf(p, sizeof p, "%s.status", path);
+  snprintf(p, sizeof p, "%.200s.status", path);
   TRY(need_str(r, c, "status", p, 0, &status));
   if (!one_of(status, statuses, 3)) return bad(r, p, "must be ok, skipped or failed");
   int ok = strcmp(status, "ok") == 0;
-  snprintf(p, sizeof p, "%s.reason", path);
+  snprintf(p, sizeof p, "%.200s.reason", path);
   TRY(need_str(r, c, "reason", p, 1, &s));
-  snprintf(p, sizeof p, "%s.method", path);
+  snprintf(p, sizeof p, "%.200s.method", path);
   TRY(need_str(r, c, "method", p, !ok, &s));
   if (ok) {
     static const char *const methods[] = {"fixed", "ML-family", "ML-simplex", "ML-profile",
@@ -587,24 +587,24 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
     if (!one_of(s, methods, 5))
       return bad(r, p, "must be one of fixed, ML-family, ML-simplex, ML-profile, MPS");
   }
-  snprintf(p, sizeof p, "%s.converged", path);
+  snprintf(p, sizeof p, "%.200s.converged", path);
   TRY(need_bool(r, c, "converged", p));
   int fixed[SP_FAMILY_MAX_PARAMS] = {0};
   TRY(check_fixed(r, c, path, f, fixed));
   long long k;
-  snprintf(p, sizeof p, "%s.n", path);
+  snprintf(p, sizeof p, "%.200s.n", path);
   TRY(need_count(r, c, "n", p, 0, &k));
-  snprintf(p, sizeof p, "%s.k", path);
+  snprintf(p, sizeof p, "%.200s.k", path);
   TRY(need_count(r, c, "k", p, 0, &k));
   static const char *const crit[] = {"loglik", "aic", "aicc", "bic"};
   for (int i = 0; i < 4; i++) {
     double v;
-    snprintf(p, sizeof p, "%s.%s", path, crit[i]);
+    snprintf(p, sizeof p, "%.200s.%s", path, crit[i]);
     TRY(need_num(r, c, crit[i], p, 1, &v));
   }
-  snprintf(p, sizeof p, "%s.rejected", path);
+  snprintf(p, sizeof p, "%.200s.rejected", path);
   TRY(need_bool(r, c, "rejected", p));
-  snprintf(p, sizeof p, "%s.judged_by", path);
+  snprintf(p, sizeof p, "%.200s.judged_by", path);
   TRY(need_str(r, c, "judged_by", p, 1, &s));
   if (s && !one_of(s, gof_keys, SP_FIT_NGOF)) return bad(r, p, "must be A2, W2, D or null");
   if (!ok) return SP_OK;
@@ -615,24 +615,24 @@ static sp_status check_candidate(rctx *r, const json_t *c, const char *path)
   double cov[SP_FAMILY_MAX_PARAMS][SP_FAMILY_MAX_PARAMS];
   TRY(check_cov(r, c, path, f, fixed, &avail, cov));
   json_t *g = NULL;
-  snprintf(p, sizeof p, "%s.gof", path);
+  snprintf(p, sizeof p, "%.200s.gof", path);
   TRY(need_obj(r, c, "gof", p, &g));
   for (int j = 0; j < SP_FIT_NGOF; j++) {
     json_t *st = NULL;
-    char pg[340], pp[360];
-    snprintf(pg, sizeof pg, "%s.gof.%s", path, gof_keys[j]);
+    char pg[512], pp[512];
+    snprintf(pg, sizeof pg, "%.200s.gof.%s", path, gof_keys[j]);
     TRY(need_obj(r, g, gof_keys[j], pg, &st));
     double v;
-    snprintf(pp, sizeof pp, "%s.stat", pg);
+    snprintf(pp, sizeof pp, "%.200s.stat", pg);
     TRY(need_num(r, st, "stat", pp, 1, &v));
-    snprintf(pp, sizeof pp, "%s.p", pg);
+    snprintf(pp, sizeof pp, "%.200s.p", pg);
     TRY(need_num(r, st, "p", pp, 1, &v));
     if (isfinite(v) && !(v >= 0 && v <= 1)) return bad(r, pp, "must be in [0, 1]");
-    snprintf(pp, sizeof pp, "%s.bound", pg);
+    snprintf(pp, sizeof pp, "%.200s.bound", pg);
     TRY(need_str(r, st, "bound", pp, 1, &s));
     static const char *const bounds[] = {"below", "above"};
     if (s && !one_of(s, bounds, 2)) return bad(r, pp, "must be below, above or null");
-    snprintf(pp, sizeof pp, "%s.method", pg);
+    snprintf(pp, sizeof pp, "%.200s.method", pg);
     TRY(need_str(r, st, "method", pp, 1, &s));
     if (isfinite(v) && !s) return bad(r, pp, "must name the method of a given p-value");
   }
@@ -695,15 +695,15 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   size_t i;
   json_t *m;
   json_array_foreach(meta, i, m) {
-    char p[64], pp[96];
+    char p[512], pp[512];
     snprintf(p, sizeof p, "data.metadata[%zu]", i);
     if (!json_is_object(m)) return bad(r, p, "must be an object");
-    snprintf(pp, sizeof pp, "%s.line", p);
+    snprintf(pp, sizeof pp, "%.200s.line", p);
     long long line;
     TRY(need_count(r, m, "line", pp, 0, &line));
-    snprintf(pp, sizeof pp, "%s.key", p);
+    snprintf(pp, sizeof pp, "%.200s.key", p);
     TRY(need_str(r, m, "key", pp, 0, &s));
-    snprintf(pp, sizeof pp, "%s.value", p);
+    snprintf(pp, sizeof pp, "%.200s.value", p);
     TRY(need_str(r, m, "value", pp, 0, &s));
   }
   TRY(need_str(r, data, "column", "data.column", 0, &column));
@@ -716,14 +716,14 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   json_t *fams = NULL, *fixed = NULL, *boot = NULL;
   TRY(need_arr(r, opt, "families", "options.families", &fams));
   json_array_foreach(fams, i, m) {
-    char p[64];
+    char p[512];
     snprintf(p, sizeof p, "options.families[%zu]", i);
     if (!json_is_string(m)) return bad(r, p, "must be a string");
   }
   TRY(need_obj(r, opt, "fixed", "options.fixed", &fixed));
   const char *key;
   json_object_foreach(fixed, key, m) {
-    char p[128];
+    char p[512];
     snprintf(p, sizeof p, "options.fixed.%.100s", key);
     if (!json_is_number(m)) return bad(r, p, "must be a number");
   }
@@ -751,7 +751,7 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_arr(r, root, "candidates", "candidates", &cands));
   if (json_array_size(cands) == 0) return bad(r, "candidates", "must not be empty");
   json_array_foreach(cands, i, m) {
-    char p[64];
+    char p[512];
     snprintf(p, sizeof p, "candidates[%zu]", i);
     TRY(check_candidate(r, m, p));
   }
@@ -784,19 +784,19 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
     TRY(need_str(r, by, "column", "by.column", 0, &s));
     TRY(need_arr(r, by, "groups", "by.groups", &groups));
     json_array_foreach(groups, i, m) {
-      char p[64], pp[128];
+      char p[512], pp[512];
       snprintf(p, sizeof p, "by.groups[%zu]", i);
       if (!json_is_object(m)) return bad(r, p, "must be an object");
-      snprintf(pp, sizeof pp, "%s.value", p);
+      snprintf(pp, sizeof pp, "%.200s.value", p);
       TRY(need_str(r, m, "value", pp, 0, &s));
       json_t *gc = NULL;
-      snprintf(pp, sizeof pp, "%s.candidates", p);
+      snprintf(pp, sizeof pp, "%.200s.candidates", p);
       TRY(need_arr(r, m, "candidates", pp, &gc));
       size_t j;
       json_t *c;
       json_array_foreach(gc, j, c) {
-        char pc[160];
-        snprintf(pc, sizeof pc, "%s.candidates[%zu]", p, j);
+        char pc[512];
+        snprintf(pc, sizeof pc, "%.200s.candidates[%zu]", p, j);
         TRY(check_candidate(r, c, pc));
       }
     }
