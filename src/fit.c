@@ -652,12 +652,28 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
     sp_fit_candidate *c = &out->cand[i];
     st = fit_candidate(fams[i], x, sorted, n, opt, c, w, err);
     if (st != SP_OK || c->status != SP_FIT_OK || opt->pvalue == SP_FIT_PVALUE_NONE) continue;
-    if (opt->pvalue == SP_FIT_PVALUE_BOOTSTRAP) {
+    if (opt->pvalue == SP_FIT_PVALUE_BOOTSTRAP && c->family->sample) {
       st = sp_fit_bootstrap(c, n, opt->bootstrap_B, opt->seed, (uint32_t)i, opt->threads,
                             NULL, err);
       continue;
     }
     int napprox = sp_fit_gof_approx(c, sorted, n, w->P, w->Q);
+    if (opt->pvalue == SP_FIT_PVALUE_AUTO && napprox < SP_FIT_NGOF &&
+        (!c->family->sample || (double)opt->bootstrap_B * (double)n > SP_FIT_AUTO_BOOTSTRAP_MAX)) {
+      /* Too costly to run unasked (or impossible): say so per statistic. */
+      for (int j = 0; j < SP_FIT_NGOF; j++) {
+        if (isfinite(c->gof[j].p)) continue;
+        if (c->family->sample)
+          snprintf(c->gof[j].method, sizeof c->gof[j].method,
+                   "not computed: the bootstrap of B x n = %.3g values exceeds the "
+                   "automatic limit; ask for it with --pvalues bootstrap",
+                   (double)opt->bootstrap_B * (double)n);
+        else
+          snprintf(c->gof[j].method, sizeof c->gof[j].method,
+                   "not computed: the family has no sampler for a bootstrap");
+      }
+      continue;
+    }
     if (opt->pvalue == SP_FIT_PVALUE_AUTO && napprox < SP_FIT_NGOF) {
       /* The bootstrap for the statistics without a published method; the
        * approximations are kept where they exist. */

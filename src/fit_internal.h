@@ -71,10 +71,13 @@ void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
                        const double *sorted, size_t n, double *P, double *Q,
                        sp_fit_gof *gof);
 
-/* Published-approximation p-values for candidate c when they exist for
- * its family with every parameter estimated: sets gof[*].p and method and
- * returns the number of statistics that received one (0 if none). */
-int sp_fit_gof_approx(sp_fit_candidate *c);
+/* Published-approximation p-values for candidate c (fitted to the sorted
+ * data[0..n); P and Q are scratch arrays of n doubles) when they exist
+ * for its family with every parameter estimated, or for every parameter
+ * fixed: sets gof[*].p and method for each statistic that has one and
+ * returns how many did (0 if none). */
+int sp_fit_gof_approx(sp_fit_candidate *c, const double *sorted, size_t n, double *P,
+                      double *Q);
 
 /* sp_fail(err, SP_ENOMEM, ...) with the module's message. */
 sp_status sp_fit_fail_nomem(sp_error *err);

@@ -53,6 +53,14 @@ typedef enum {
 } sp_fit_select;
 
 /* Where p-values come from. */
+/* In SP_FIT_PVALUE_AUTO the bootstrap runs only while B * n is at most
+ * this many sampled values (2e8: about 40 s per candidate with a family
+ * solver at the measured ~0.2 us per value and refit, tests/bench; the
+ * general minimiser costs several times more); beyond it a
+ * statistic without a published approximation gets no p-value, and its
+ * method says why.  SP_FIT_PVALUE_BOOTSTRAP has no limit. */
+#define SP_FIT_AUTO_BOOTSTRAP_MAX 2e8
+
 typedef enum {
   SP_FIT_PVALUE_AUTO = 0,   /* approximation where published, else bootstrap */
   SP_FIT_PVALUE_BOOTSTRAP,  /* parametric bootstrap for every candidate */

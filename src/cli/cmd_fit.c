@@ -82,7 +82,9 @@ static char legend_mark(legend *l, const char *method)
 static void put_p(FILE *out, legend *l, const sp_fit_gof *g)
 {
   if (!isfinite(g->p)) {
-    fprintf(out, " %7s", "-");
+    /* No p-value; the legend still says why when the fit recorded it. */
+    if (g->method[0]) fprintf(out, " %6s%c", "-", legend_mark(l, g->method));
+    else fprintf(out, " %7s", "-");
     return;
   }
   char mark = legend_mark(l, g->method);
