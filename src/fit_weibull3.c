@@ -191,11 +191,12 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
         info->iterations++;
         if (gsl_min_fminimizer_iterate(m) != GSL_SUCCESS) break;
         double a = gsl_min_fminimizer_x_lower(m), b = gsl_min_fminimizer_x_upper(m);
-        /* GSL's Brent step cannot resolve below about sqrt(eps) |s|
-         * (its internal tolerance), so the bracket is asked to 1e-7 in s:
-         * a relative change of 1e-7 in the distance of the threshold below
-         * min(x), inside the 1e-5 agreement the tests ask for. */
-        if (gsl_min_test_interval(a, b, 1e-7, 0.0) == GSL_SUCCESS) {
+        /* GSL's Brent step cannot resolve below about 2 sqrt(eps) |s|
+         * (its internal tolerance), so the bracket is asked to 1e-7 (1 +
+         * |s|) in s: a relative change of that size in the distance of the
+         * threshold below min(x), inside the 1e-5 agreement the tests ask
+         * for. */
+        if (gsl_min_test_interval(a, b, 1e-7, 1e-7) == GSL_SUCCESS) {
           converged = 1;
           break;
         }

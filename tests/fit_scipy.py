@@ -101,6 +101,7 @@ def compare(label, cand, dist, ours_frozen_args, scipy_params, ours_params, x,
     check(cand["status"] == "ok", f"{label}: status {cand['status']} {cand.get('reason')}")
     if cand["status"] != "ok":
         return
+    check(cand["converged"], f"{label}: not converged ({cand.get('reason')})")
     args = ours_frozen_args
     frozen = dist(*args[0], **args[1])
     ll_ours = float(np.sum(frozen.logpdf(x)))
