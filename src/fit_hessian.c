@@ -170,8 +170,11 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
     return SP_OK;
   }
   const double z = gsl_cdf_ugaussian_Pinv(0.975);
+  /* Taken from one triangle so the matrix is exactly symmetric (the
+   * record reader insists on it). */
   for (size_t i = 0; i < k; i++)
-    for (size_t j = 0; j < k; j++) c->cov[idx[i]][idx[j]] = H[i * k + j];
+    for (size_t j = i; j < k; j++)
+      c->cov[idx[i]][idx[j]] = c->cov[idx[j]][idx[i]] = H[i * k + j];
   for (size_t i = 0; i < k; i++) {
     size_t p = idx[i];
     double v = c->cov[p][p];
