@@ -787,6 +787,38 @@ START_TEST(test_approximations)
 }
 END_TEST
 
+/* Scale equivariance of the general minimiser: loglogistic (no family
+ * solver) on y and on y * 1e-9 and y * 1e9 must give the same shape and
+ * scales in the ratio of the data (the likelihood maps exactly under x ->
+ * c x: closed form), to the minimiser's tolerance (1e-7 relative). */
+START_TEST(test_scale_equivariance)
+{
+  enum { N = 100 };
+  const sp_family *ll = fam("loglogistic");
+  double y[N], z[N];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 47, 0, 0);
+  double th[2] = {3.0, 20.0};
+  ll->sample(th, &g, y, N);
+  double a[2], b[2];
+  int fixed[2] = {0, 0};
+  sp_fit_mle_info info;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_mle(ll, y, N, fixed, a, &info, &e), SP_OK);
+  ck_assert_int_eq(info.method, SP_FIT_METHOD_SIMPLEX);
+  ck_assert(info.converged);
+  const double cs[2] = {1e-9, 1e9};
+  for (int q = 0; q < 2; q++) {
+    for (int i = 0; i < N; i++) z[i] = y[i] * cs[q];
+    ck_assert_int_eq(sp_fit_mle(ll, z, N, fixed, b, &info, &e), SP_OK);
+    ck_assert(info.converged);
+    ASSERT_REL(b[0], a[0], 1e-7);
+    ASSERT_REL(b[1], a[1] * cs[q], 1e-7);
+  }
+}
+END_TEST
+
 /* Exponential with the scale estimated (rate by ML, the table's
  * estimator): D'Agostino & Stephens (1986), Goodness-of-Fit Techniques,
  * Table 4.11 (as read in shared/REFERENCES.md, 1986 revision): 5% point of
@@ -880,6 +912,7 @@ static Suite *fit_suite(void)
   tcase_add_test(tc, test_skipped_family);
   tcase_add_test(tc, test_grouped);
   tcase_add_test(tc, test_approximations);
+  tcase_add_test(tc, test_scale_equivariance);
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);

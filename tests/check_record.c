@@ -252,6 +252,48 @@ START_TEST(test_bad_fields)
 }
 END_TEST
 
+/* A per-lot record: the pooled fit at the top level, the lots under "by";
+ * it reads back, and a bad field inside a lot is named by its path. */
+START_TEST(test_grouped_record)
+{
+  double x[40];
+  const char *lot[40];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 5, 0, 0);
+  for (int i = 0; i < 40; i++) {
+    x[i] = 5.0 + sp_rng_normal(&g);
+    lot[i] = i < 20 ? "L1" : "L2";
+  }
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_APPROX;
+  sp_fit_grouped gr;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_run_grouped(x, lot, 40, &o, &gr, &e), SP_OK);
+  sp_record_fit_source src = {"lots.csv", 10, "0123456789abcdef0123456789abcdef"
+                              "0123456789abcdef0123456789abcdef",
+                              NULL, 0, "d", NULL, "lot", 0, 0};
+  char *text = NULL;
+  ck_assert_int_eq(sp_record_fit_grouped_dumps(&gr, &src, &text, &e), SP_OK);
+  sp_record_fit r;
+  ck_assert_msg(sp_record_fit_parse("lots.json", text, strlen(text), &r, &e) == SP_OK, "%s",
+                e.msg);
+  ck_assert(r.params[0] == gr.pooled.cand[0].theta[0]);
+  ck_assert_ptr_null(r.unit);
+  sp_record_fit_clear(&r);
+  ck_assert(strstr(text, "\"value\": \"L2\"") != NULL);
+  char *t = mutate(text, "\"value\": \"L2\"", "loglik", "\"x\"");
+  expect_bad(t, "field 'by.groups[1].candidates[0].loglik' must be a number or null");
+  free(t);
+  free(text);
+  sp_fit_grouped_clear(&gr);
+}
+END_TEST
+
 static Suite *record_suite(void)
 {
   Suite *s = suite_create("record");
@@ -260,6 +302,7 @@ static Suite *record_suite(void)
   tcase_add_test(tc, test_round_trip);
   tcase_add_test(tc, test_write_read_file);
   tcase_add_test(tc, test_bad_fields);
+  tcase_add_test(tc, test_grouped_record);
   suite_add_tcase(s, tc);
   return s;
 }
