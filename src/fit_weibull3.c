@@ -187,6 +187,8 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
         gsl_min_fminimizer_set_with_values(m, &F, gs[best], -gl[best], gs[best - 1],
                                            -gl[best - 1], gs[best + 1],
                                            -gl[best + 1]) == GSL_SUCCESS) {
+      /* Brent converges superlinearly; 200 iterations is far beyond what
+       * a bracket from the grid needs (about 40 at golden-section speed). */
       for (int it = 0; it < 200; it++) {
         info->iterations++;
         if (gsl_min_fminimizer_iterate(m) != GSL_SUCCESS) break;
@@ -246,6 +248,9 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
   /* No interior maximum, the likelihood rising towards min(x): MPS. */
   memcpy(w->sorted, x, n * sizeof *x);
   sp_fit_sort(w->sorted, n);
+  /* Start the spacings fit with the threshold 5% of the data spread below
+   * min(x): inside the region where the likelihood rose towards min(x),
+   * and far enough from it for the 2-parameter fit to be regular. */
   double s0 = log(0.05);
   if (!isfinite(profile(&P, s0)))
     return sp_fail(err, SP_ENUMERIC, "%s: no starting point for the spacings fit", fam->name);
