@@ -292,9 +292,10 @@ static int newton_polish(tctx *c, double *t, double *f, size_t *iters)
     }
     /* No decrease along a descent direction: the objective's rounding
      * floor is reached, and the decrement measures mostly noise; it is
-     * accepted as converged within a thousand times the tolerance (still a
-     * predicted gain of 1e-9 |f|, about 1e-5 of a parameter's standard
-     * error for n >= 10). */
+     * accepted as converged within a thousand times the tolerance: a
+     * predicted gain of at most 1e-9 |f|, i.e. a distance of at most
+     * sqrt(2e-9 |f|) standard errors from the optimum (0.0014 se at
+     * |f| = 1000). */
     if (!moved) return 0.5 * dec <= 1e3 * tol;
   }
   return 0;
