@@ -51,6 +51,55 @@ static double hf(const hctx *h, const double *theta)
   return h->obj(h->fam, theta, h->x, h->n, NULL);
 }
 
+/* Standard error and Wald 95% interval of parameter p: on the log scale
+ * for a positive parameter (so the interval stays positive), linear
+ * otherwise. */
+static void set_interval(sp_fit_candidate *c, size_t p, double var)
+{
+  const double z = gsl_cdf_ugaussian_Pinv(0.975);
+  double se = sqrt(var), th = c->theta[p];
+  c->se[p] = se;
+  if (c->family->param_kinds[p] == SP_PARAM_POSITIVE) {
+    c->ci_scale[p] = SP_FIT_CI_LOG;
+    c->ci_lo[p] = th * exp(-z * se / th);
+    c->ci_hi[p] = th * exp(z * se / th);
+  } else {
+    c->ci_scale[p] = SP_FIT_CI_LINEAR;
+    c->ci_lo[p] = th - z * se;
+    c->ci_hi[p] = th + z * se;
+  }
+}
+
+/* Closed-form observed information at the maximum-likelihood estimate,
+ * where it is simple (by family name; the finite-difference Hessian
+ * otherwise):
+ *  - normal (mean m, sd s) and lognormal (the same on ln x): at the MLE
+ *    -d2 logL/dm2 = n/s^2, -d2 logL/ds2 = 2n/s^2 (with the other
+ *    parameter free or fixed at its value), and the cross term is
+ *    -2 sum(x - m)/s^3 = 0 when m is estimated, so Var(m) = s^2/n,
+ *    Var(s) = s^2/(2n), Cov = 0;
+ *  - exponential (rate r): -d2 logL/dr2 = n/r^2, Var(r) = r^2/n.
+ * Returns 1 when it filled var[] (the diagonal; off-diagonal terms are 0),
+ * 0 when the family has no closed form here. */
+static int analytic_variance(const sp_fit_candidate *c, size_t n, double *var)
+{
+  const char *name = c->family->name;
+  double dn = (double)n;
+  if (strcmp(name, "normal") == 0 || strcmp(name, "lognormal") == 0) {
+    double s = c->theta[1];
+    var[0] = s * s / dn;
+    var[1] = s * s / (2.0 * dn);
+    /* With the mean fixed away from the data mean the cross term is not
+     * zero and the sd's MLE differs: use the numerical Hessian then. */
+    return !c->fixed[0];
+  }
+  if (strcmp(name, "exponential") == 0) {
+    var[0] = c->theta[0] * c->theta[0] / dn;
+    return 1;
+  }
+  return 0;
+}
+
 sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
                             sp_error *err)
 {
@@ -67,6 +116,18 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
     if (!c->fixed[p]) idx[k++] = p;
   if (k == 0) {
     snprintf(c->cov_note, sizeof c->cov_note, "every parameter is fixed");
+    return SP_OK;
+  }
+
+  double avar[SP_FAMILY_MAX_PARAMS];
+  if (c->method == SP_FIT_METHOD_FAMILY && analytic_variance(c, n, avar)) {
+    for (size_t i = 0; i < k; i++) {
+      c->cov[idx[i]][idx[i]] = avar[idx[i]];
+      set_interval(c, idx[i], avar[idx[i]]);
+    }
+    c->cov_available = 1;
+    snprintf(c->cov_note, sizeof c->cov_note,
+             "inverse observed information (closed form at the MLE)");
     return SP_OK;
   }
 
@@ -169,7 +230,6 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
              "covariance unavailable: the observed information is not positive definite");
     return SP_OK;
   }
-  const double z = gsl_cdf_ugaussian_Pinv(0.975);
   /* Taken from one triangle so the matrix is exactly symmetric (the
    * record reader insists on it). */
   for (size_t i = 0; i < k; i++)
@@ -185,17 +245,7 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
       memset(c->cov, 0, sizeof c->cov);
       return SP_OK;
     }
-    double se = sqrt(v), th = c->theta[p];
-    c->se[p] = se;
-    if (fam->param_kinds[p] == SP_PARAM_POSITIVE) {
-      c->ci_scale[p] = SP_FIT_CI_LOG;
-      c->ci_lo[p] = th * exp(-z * se / th);
-      c->ci_hi[p] = th * exp(z * se / th);
-    } else {
-      c->ci_scale[p] = SP_FIT_CI_LINEAR;
-      c->ci_lo[p] = th - z * se;
-      c->ci_hi[p] = th + z * se;
-    }
+    set_interval(c, p, v);
   }
   c->cov_available = 1;
   snprintf(c->cov_note, sizeof c->cov_note, "%s",

@@ -819,6 +819,47 @@ START_TEST(test_scale_equivariance)
 }
 END_TEST
 
+/* The registered normal's covariance comes from the closed form (Var(m)
+ * = s^2/n, Var(s) = s^2/(2n) at the MLE); the finite-difference Hessian
+ * of the test family on the same data must agree with it (1e-6, the
+ * difference scheme's accuracy with margin): each method checks the
+ * other. */
+START_TEST(test_covariance_analytic_vs_fd)
+{
+  double x[50];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 53, 0, 0);
+  for (int i = 0; i < 50; i++) x[i] = 7.0 + 0.3 * sp_rng_normal(&g);
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_run(x, 50, &o, &r, &e), SP_OK);
+  const sp_fit_candidate *a = &r.cand[0];
+  ck_assert(strstr(a->cov_note, "closed form") != NULL);
+  double s = a->theta[1];
+  ASSERT_REL(a->se[0], s / sqrt(50.0), 1e-15);
+  ASSERT_REL(a->se[1], s / sqrt(100.0), 1e-15);
+  sp_fit_candidate b;
+  memset(&b, 0, sizeof b);
+  b.family = &tnorm_cf;
+  b.nparam = 2;
+  b.method = SP_FIT_METHOD_FAMILY;
+  memcpy(b.theta, a->theta, sizeof b.theta);
+  ck_assert_int_eq(sp_fit_covariance(&b, x, 50, &e), SP_OK);
+  ck_assert(strstr(b.cov_note, "central differences") != NULL);
+  ASSERT_REL(b.se[0], a->se[0], 1e-6);
+  ASSERT_REL(b.se[1], a->se[1], 1e-6);
+  ASSERT_ABS(b.cov[0][1] / (b.se[0] * b.se[1]), 0.0, 1e-6);
+  sp_fit_result_clear(&r);
+}
+END_TEST
+
 /* Exponential with the scale estimated (rate by ML, the table's
  * estimator): D'Agostino & Stephens (1986), Goodness-of-Fit Techniques,
  * Table 4.11 (as read in shared/REFERENCES.md, 1986 revision): 5% point of
@@ -913,6 +954,7 @@ static Suite *fit_suite(void)
   tcase_add_test(tc, test_grouped);
   tcase_add_test(tc, test_approximations);
   tcase_add_test(tc, test_scale_equivariance);
+  tcase_add_test(tc, test_covariance_analytic_vs_fd);
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
