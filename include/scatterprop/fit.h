@@ -13,9 +13,10 @@
  * error.
  *
  * Standard errors come from the observed information (the Hessian of the
- * negative log-likelihood in the natural parameters, by central finite
- * differences) inverted by Cholesky; a Hessian that is not positive
- * definite leaves the covariance unavailable, with the reason.
+ * negative log-likelihood in the natural parameters: closed form where it
+ * is simple, central finite differences otherwise) inverted by Cholesky;
+ * a Hessian that is not positive definite leaves the covariance
+ * unavailable, with the reason.
  *
  * Goodness of fit: Anderson-Darling A^2, Kolmogorov-Smirnov D and
  * Cramer-von Mises W^2 of the fitted CDF for every candidate, with
@@ -214,7 +215,9 @@ sp_status sp_fit_mle(const sp_family *fam, const double *x, size_t n,
                      const int *fixed, double *theta, sp_fit_mle_info *info,
                      sp_error *err);
 
-/* Observed-information covariance of the free parameters at theta:
+/* Observed-information covariance of the free parameters at theta: the
+ * closed form for normal, lognormal and exponential fitted by their family
+ * solver (fit_hessian.c), otherwise (and for MPS, the spacings objective)
  * central finite differences of -logL in the natural parameters with step
  * h_i = DBL_EPSILON^(1/4) * max(|theta_i|, typical_i) (see fit_hessian.c
  * for the derivation), inverted by Cholesky.  Fills c->se, c->cov,
