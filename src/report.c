@@ -169,11 +169,28 @@ typedef struct {
   const char *path;
   unsigned fig;     /* figure number: ids become "fN-..." */
   sp_error *err;
+  sbuf ids;         /* ids seen so far, each followed by a NUL */
+  unsigned dups;
 } svg_ctx;
+
+/* Whether the id v[0..n) was seen before in this SVG; records it if not.
+ * (gnuplot repeats some ids, e.g. a plot's group in the key; an HTML page
+ * needs them unique, and references resolve to the first anyway.) */
+static int seen_id(svg_ctx *cx, const char *v, size_t n)
+{
+  for (size_t i = 0; i < cx->ids.len;) {
+    size_t len = strlen(cx->ids.s + i);
+    if (len == n && memcmp(cx->ids.s + i, v, n) == 0) return 1;
+    i += len + 1;
+  }
+  sb_add(&cx->ids, v, n);
+  sb_add(&cx->ids, "", 1);
+  return 0;
+}
 
 /* Appends an attribute value (without its quotes), with the ids it refers
  * to prefixed: "#x" for href, url(#x) anywhere. */
-static sp_status put_value(sbuf *b, const svg_ctx *cx, const char *name, size_t nlen,
+static sp_status put_value(sbuf *b, svg_ctx *cx, const char *name, size_t nlen,
                            const char *v, size_t vlen)
 {
   int is_href = ieq_n(name, nlen, "href") || (nlen > 5 && ieq_prefix(name + nlen - 5, ":href"));
@@ -192,6 +209,11 @@ static sp_status put_value(sbuf *b, const svg_ctx *cx, const char *name, size_t 
     vlen--;
   } else if (is_id) {
     sb_printf(b, "f%u-", cx->fig);
+    if (seen_id(cx, v, vlen)) {
+      sb_add(b, v, vlen);
+      sb_printf(b, "-again%u", ++cx->dups);
+      return SP_OK;
+    }
   }
   for (size_t i = 0; i < vlen; i++) {
     if (v[i] == '"') { sb_puts(b, "&quot;"); continue; }
@@ -218,7 +240,7 @@ static sp_status put_value(sbuf *b, const svg_ctx *cx, const char *name, size_t 
 /* Re-emits one start tag s[0..n) ("<name ...>" or "<name .../>") after
  * checking it.  root: the outermost <svg>, whose width and height are
  * dropped so that the page's CSS sizes it (the viewBox keeps the aspect). */
-static sp_status put_start_tag(sbuf *b, const svg_ctx *cx, const char *s, size_t n, int root)
+static sp_status put_start_tag(sbuf *b, svg_ctx *cx, const char *s, size_t n, int root)
 {
   size_t i = 1, j;
   for (j = i; j < n && name_char(s[j]); j++) {
@@ -330,6 +352,36 @@ static sp_status read_svg(const char *path, char **out, size_t *len, sp_error *e
   return SP_OK;
 }
 
+/* The start of the root element: past blanks, the XML declaration,
+ * processing instructions, comments and a DOCTYPE (dropped: an internal
+ * subset could declare entities); NULL when the prolog is malformed. */
+static const char *skip_prolog(const char *p, const char *end)
+{
+  for (;;) {
+    while (p < end && is_space(*p)) p++;
+    if (end - p >= 4 && memcmp(p, "<!--", 4) == 0) {
+      const char *q = find_str(p + 4, end, "-->");
+      if (!q) return NULL;
+      p = q + 3;
+    } else if (end - p >= 2 && memcmp(p, "<?", 2) == 0) {
+      const char *q = find_str(p + 2, end, "?>");
+      if (!q) return NULL;
+      p = q + 2;
+    } else if (end - p >= 9 && memcmp(p, "<!DOCTYPE", 9) == 0) {
+      const char *q = tag_end(p, end);
+      const char *bracket = memchr(p, '[', (size_t)(end - p));
+      if (bracket && (!q || bracket < q)) {
+        q = find_str(bracket, end, "]>");
+        if (q) q++;
+      }
+      if (!q) return NULL;
+      p = q + 1;
+    } else {
+      return p;
+    }
+  }
+}
+
 /* Embeds the SVG file at path: from its <svg> to its </svg>, each tag
  * checked and re-emitted, comments and processing instructions dropped,
  * text between tags copied (an SVG writer escapes it already; a stray
@@ -340,9 +392,11 @@ static sp_status embed_svg(sbuf *b, const char *path, unsigned fig, sp_error *er
   size_t len;
   sp_status st = read_svg(path, &doc, &len, err);
   if (st) return st;
-  svg_ctx cx = {path, fig, err};
+  svg_ctx cx = {path, fig, err, {0}, 0};
   const char *end = doc ? doc + len : NULL;
-  const char *p = doc ? find_str(doc, end, "<svg") : NULL;
+  const char *p = doc ? skip_prolog(doc, end) : NULL;
+  if (p && (end - p < 5 || memcmp(p, "<svg", 4) != 0 || !(is_space(p[4]) || p[4] == '>')))
+    p = NULL;
   const char *last = NULL;
   for (const char *q = p; q && (q = find_str(q, end, "</svg>")) != NULL; q += 6) last = q;
   if (!p || !last) {
@@ -392,6 +446,8 @@ static sp_status embed_svg(sbuf *b, const char *path, unsigned fig, sp_error *er
     }
     p = q + 1;
   }
+  if (st == SP_OK && cx.ids.oom) st = sp_fail(err, SP_ENOMEM, "out of memory");
+  free(cx.ids.s);
   free(doc);
   return st;
 }

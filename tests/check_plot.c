@@ -15,6 +15,7 @@
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_randist.h>
 
+#include "scatterprop/dist.h"
 #include "scatterprop/plot.h"
 #include "sp_test.h"
 
@@ -637,6 +638,89 @@ START_TEST(test_sensitivity_ranked)
 }
 END_TEST
 
+
+/* Every registered family through the fit charts, with data placed
+ * exactly at the family's own quantiles Q(p_i), p_i = (i - 0.5)/n: the
+ * probability plot must then put every point on y = x (the plot takes
+ * quantile_Q of 1 - p_i above the median, so this also checks that each
+ * family's two tails agree), inside its band; densities and CDFs must be
+ * finite, >= 0 and <= 1.  Parameters are plain valid values per family. */
+static const struct {
+  const char *name;
+  double theta[SP_FAMILY_MAX_PARAMS];
+} family_params[] = {
+    {"beta", {2, 3, 0, 1}},          {"exponential", {0.5}},
+    {"exponential2", {0.5, 3}},      {"gamma", {3, 2}},
+    {"gumbel_max", {10, 2}},         {"gumbel_min", {10, 2}},
+    {"logistic", {10, 2}},           {"loglogistic", {4, 10}},
+    {"lognormal", {1, 0.25}},        {"normal", {10, 2}},
+    {"triangular", {0, 3, 10}},      {"truncnormal", {10, 2, 7, 15}},
+    {"uniform", {2, 5}},             {"weibull", {2, 10}},
+    {"weibull3", {2, 10, 5}},
+};
+
+START_TEST(test_registered_families)
+{
+  char dir[64];
+  make_tmpdir(dir, sizeof dir);
+  enum { N = 40 };
+  for (size_t k = 0; k < sizeof family_params / sizeof family_params[0]; k++) {
+    const sp_family *fam = sp_family_find(family_params[k].name);
+    ck_assert_msg(fam != NULL, "family %s is not registered", family_params[k].name);
+    sp_plot_curve cv = {fam, {0}, NULL};
+    memcpy(cv.theta, family_params[k].theta, sizeof cv.theta);
+    double x[N];
+    for (int i = 0; i < N; i++) x[i] = fam->quantile_P(cv.theta, ((double)i + 0.5) / N);
+    sp_plot_fit f = {.axis = {fam->name, "u"}, .x = x, .n = N, .curves = &cv, .ncurves = 1,
+                     .band_level = 0.9};
+    sp_plot_options o;
+    sp_plot_output out;
+    sp_error err;
+    char stem[64];
+    snprintf(stem, sizeof stem, "prob_%s", fam->name);
+    opts(&o, dir, stem);
+    ck_assert_msg(sp_plot_fit_probability(&f, &o, &out, &err) == SP_OK, "%s: %s", fam->name,
+                  err.msg);
+    ck_assert_msg(out.rendered, "%s: %s", fam->name, out.hint);
+    size_t rows, cols, brows, bcols;
+    double *v = read_block(out.data, 0, &rows, &cols);
+    double *b = read_block(out.data, 1, &brows, &bcols);
+    ck_assert_uint_eq(rows, N);
+    ck_assert_uint_eq(brows, N);
+    for (size_t i = 0; i < N; i++) {
+      double scale = fmax(fabs(v[3 * i + 1]), 1.0);
+      /* Q_P(p) and Q_Q(1 - p) agree to the accuracy of the family's
+       * inversions (1e-9 relative is far below a pixel). */
+      ck_assert_msg(fabs(v[3 * i] - v[3 * i + 1]) <= 1e-9 * scale, "%s: point %zu off the line: "
+                    "%.17g vs %.17g", fam->name, i, v[3 * i], v[3 * i + 1]);
+      ck_assert_msg(b[3 * i] == v[3 * i], "%s: band row %zu", fam->name, i);
+      ck_assert_msg(b[3 * i + 1] <= v[3 * i] + 1e-9 * scale &&
+                        v[3 * i] <= b[3 * i + 2] + 1e-9 * scale,
+                    "%s: band [%g, %g] misses %g", fam->name, b[3 * i + 1], b[3 * i + 2],
+                    v[3 * i]);
+    }
+    free(v);
+    free(b);
+    for (int kind = 0; kind < 2; kind++) {
+      snprintf(stem, sizeof stem, "%s_%s", kind ? "ecdf" : "hist", fam->name);
+      opts(&o, dir, stem);
+      o.gnuplot = "";
+      sp_status st = kind ? sp_plot_fit_ecdf(&f, &o, &out, &err)
+                          : sp_plot_fit_histogram(&f, &o, &out, &err);
+      ck_assert_msg(st == SP_OK, "%s: %s", fam->name, err.msg);
+      v = read_block(out.data, 1, &rows, &cols);
+      ck_assert_msg(rows > 100, "%s: %zu curve points", fam->name, rows);
+      for (size_t i = 0; i < rows; i++)
+        ck_assert_msg(isfinite(v[2 * i + 1]) && v[2 * i + 1] >= 0 &&
+                          (kind == 0 || v[2 * i + 1] <= 1),
+                      "%s: curve value %g", fam->name, v[2 * i + 1]);
+      free(v);
+    }
+  }
+  rm_tree(dir);
+}
+END_TEST
+
 /* ---- failure paths ------------------------------------------------------------------ */
 
 START_TEST(test_without_gnuplot)
@@ -875,6 +959,7 @@ static Suite *plot_suite(void)
   tcase_add_test(t, test_probability_plot_values);
   tcase_add_test(t, test_exceedance_points);
   tcase_add_test(t, test_sensitivity_ranked);
+  tcase_add_test(t, test_registered_families);
   suite_add_tcase(s, t);
   t = tcase_create("failures");
   tcase_set_timeout(t, 60);
