@@ -93,15 +93,25 @@ void sp_spawn_result_free(sp_spawn_result *res)
   res->output_len = 0;
 }
 
-/* Appends what fits of buf to the result's bounded output. */
+/* Appends buf to the result's bounded output, dropping the oldest bytes
+ * when it is full: a program's last words (gnuplot's error, which ends
+ * its run) matter more than its first. */
 static void keep_output(sp_spawn_result *res, const char *buf, size_t n)
 {
-  size_t room = SP_SPAWN_OUTPUT_MAX - res->output_len;
-  size_t take = n < room ? n : room;
-  memcpy(res->output + res->output_len, buf, take);
-  res->output_len += take;
+  if (n >= SP_SPAWN_OUTPUT_MAX) {
+    buf += n - SP_SPAWN_OUTPUT_MAX;
+    n = SP_SPAWN_OUTPUT_MAX;
+    res->output_len = 0;
+    res->output_truncated = 1;
+  } else if (res->output_len + n > SP_SPAWN_OUTPUT_MAX) {
+    size_t drop = res->output_len + n - SP_SPAWN_OUTPUT_MAX;
+    memmove(res->output, res->output + drop, res->output_len - drop);
+    res->output_len -= drop;
+    res->output_truncated = 1;
+  }
+  memcpy(res->output + res->output_len, buf, n);
+  res->output_len += n;
   res->output[res->output_len] = '\0';
-  if (take < n) res->output_truncated = 1;
 }
 
 /* Ends the child's process group, then the child itself (in case it left

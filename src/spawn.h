@@ -21,9 +21,9 @@ typedef struct {
   int signal;       /* the signal that ended it, 0 if none */
   int timed_out;    /* 1 when the time limit ended it */
   char *output;     /* returns owned: stdout and stderr as written (NUL
-                     * terminated, at most SP_SPAWN_OUTPUT_MAX bytes kept) */
+                     * terminated; the last SP_SPAWN_OUTPUT_MAX bytes) */
   size_t output_len;
-  int output_truncated; /* 1 when more was written than was kept */
+  int output_truncated; /* 1 when earlier output was dropped */
 } sp_spawn_result;
 
 /* Output kept from a child.  gnuplot's error messages are a few lines; 64

@@ -942,6 +942,62 @@ START_TEST(test_bad_specs)
 }
 END_TEST
 
+
+/* Stand-ins for gnuplot (small shell scripts run as the program) reach
+ * the paths a real gnuplot rarely takes. */
+static void fake_program(const char *path, const char *text)
+{
+  write_file(path, text);
+  ck_assert_int_eq(chmod(path, 0755), 0);
+}
+
+START_TEST(test_gnuplot_stand_ins)
+{
+  char dir[64], bin[64];
+  make_tmpdir(dir, sizeof dir);
+  make_tmpdir(bin, sizeof bin);
+  double x[2] = {1, 2}, y[2] = {3, 4};
+  sp_plot_scatter sc = {.x = x, .y = y, .npoints = 2};
+  sp_plot_options o;
+  sp_plot_output out;
+  sp_error err;
+  char prog[128];
+  /* Cannot be executed (its interpreter does not exist). */
+  snprintf(prog, sizeof prog, "%s/noexec", bin);
+  fake_program(prog, "#!/nonexistent/interpreter\n");
+  opts(&o, dir, "s1");
+  o.gnuplot = prog;
+  ck_assert_int_eq(sp_plot_run_scatter(&sc, &o, &out, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "cannot run it");
+  ASSERT_HAS(err.msg, "noexec");
+  /* Succeeds but draws nothing. */
+  snprintf(prog, sizeof prog, "%s/lazy", bin);
+  fake_program(prog, "#!/bin/sh\nexit 0\n");
+  o.gnuplot = prog;
+  ck_assert_int_eq(sp_plot_run_scatter(&sc, &o, &out, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "gnuplot made no s1.png/s1.svg");
+  /* Fails after a flood of output: the message keeps the end of it, and
+   * the run is not stalled by a full pipe. */
+  snprintf(prog, sizeof prog, "%s/noisy", bin);
+  fake_program(prog, "#!/bin/sh\ni=0\nwhile [ $i -lt 5000 ]; do\n"
+                     "  echo \"warning line $i of a long and noisy output\" >&2\n"
+                     "  i=$((i+1))\ndone\necho 'final: the real error' >&2\nexit 3\n");
+  o.gnuplot = prog;
+  ck_assert_int_eq(sp_plot_run_scatter(&sc, &o, &out, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "exit status 3");
+  ASSERT_HAS(err.msg, "final: the real error");
+  /* Killed by a signal. */
+  snprintf(prog, sizeof prog, "%s/crash", bin);
+  fake_program(prog, "#!/bin/sh\nkill -SEGV $$\n");
+  o.gnuplot = prog;
+  ck_assert_int_eq(sp_plot_run_scatter(&sc, &o, &out, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "signal 11");
+  ck_assert_int_eq(count_entries(dir), 0);
+  rm_tree(dir);
+  rm_tree(bin);
+}
+END_TEST
+
 static Suite *plot_suite(void)
 {
   Suite *s = suite_create("plot");
@@ -968,6 +1024,7 @@ static Suite *plot_suite(void)
   tcase_add_test(t, test_unknown_placeholder);
   tcase_add_test(t, test_gnuplot_timeout);
   tcase_add_test(t, test_overwrite);
+  tcase_add_test(t, test_gnuplot_stand_ins);
   tcase_add_test(t, test_bad_specs);
   suite_add_tcase(s, t);
   return s;
