@@ -1317,7 +1317,7 @@ sp_status sp_plot_fit_lots(const sp_plot_lots *spec, const sp_plot_options *opt,
 
 /* ---- outputs of a run ------------------------------------------------------- */
 
-sp_status sp_plot_run_histogram(const sp_plot_output_hist *spec, const sp_plot_options *opt,
+sp_status sp_plot_run_histogram(const sp_plot_run_hist *spec, const sp_plot_options *opt,
                                 sp_plot_output *out, sp_error *err)
 {
   if (!spec) return sp_fail(err, SP_EUSAGE, "plot: no chart spec given");

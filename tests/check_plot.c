@@ -292,6 +292,7 @@ START_TEST(test_template_dir_search)
   ASSERT_HAS(err.msg, "/nonexistent/a");
   ASSERT_HAS(err.msg, "/nonexistent/b");
   ASSERT_HAS(err.hint, "SCATTERPROP_PLOTS");
+  unsetenv("SCATTERPROP_PLOTS");
   unlink(p);
   rmdir(dir);
 }
@@ -334,7 +335,7 @@ START_TEST(test_every_template_renders)
     ys[i] = 500.0 + 40.0 * gsl_cdf_exponential_Pinv(p, 1.0);
   }
   sp_plot_limit lim[2] = {{650.0, "stress limit 650 MPa"}, {700.0, "proof 700 MPa"}};
-  sp_plot_output_hist oh = {.title = "tau: shear stress at working load",
+  sp_plot_run_hist oh = {.title = "tau: shear stress at working load",
                             .axis = {"tau", "MPa"}, .samples = ys, .n = NS,
                             .coverage = {502.0, 647.6, 0.95}, .limits = lim, .nlimits = 2};
   opts(&o, dir, "run_tau_hist");
@@ -811,6 +812,7 @@ START_TEST(test_gnuplot_error_reported)
   ck_assert_int_eq(out.rendered, 0);
   /* No partial output, no staging folder. */
   ck_assert_int_eq(count_entries(dir), 0);
+  unsetenv("SCATTERPROP_PLOTS");
   rm_tree(dir);
   rm_tree(tdir);
 }
@@ -835,6 +837,7 @@ START_TEST(test_unknown_placeholder)
   broken_templates(tdir, sizeof tdir, "fit_ecdf", "@VARS@\nplot x\n");
   ck_assert_int_eq(sp_plot_fit_ecdf(&f, &o, &out, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "lacks its @STYLE@ line");
+  unsetenv("SCATTERPROP_PLOTS");
   rm_tree(dir);
   rm_tree(tdir);
 }
@@ -862,6 +865,7 @@ START_TEST(test_gnuplot_timeout)
   ASSERT_HAS(err.msg, "did not finish chart slow within 0.5 s");
   ck_assert_msg(secs < 10.0, "took %g s", secs);
   ck_assert_int_eq(count_entries(dir), 0);
+  unsetenv("SCATTERPROP_PLOTS");
   rm_tree(dir);
   rm_tree(tdir);
 }

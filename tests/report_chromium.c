@@ -115,7 +115,7 @@ int main(int argc, char **argv)
     y[i] = 560.0 + 30.0 * gsl_cdf_gamma_Pinv(p, 3.0, 1.0);
   }
   sp_plot_limit lim[1] = {{780.0, "limit 780 MPa"}};
-  sp_plot_output_hist rh = {.title = "tau: shear stress at working load",
+  sp_plot_run_hist rh = {.title = "tau: shear stress at working load",
                             .axis = {"tau", "MPa"}, .samples = y, .n = NY,
                             .coverage = {567.3, 750.4, 0.95}, .limits = lim, .nlimits = 1};
   options(&opt, "run_tau_hist", plots);

@@ -184,11 +184,11 @@ typedef struct {
   sp_plot_interval coverage;
   const sp_plot_limit *limits;
   size_t nlimits;
-} sp_plot_output_hist;
+} sp_plot_run_hist;
 
 /* Histogram (density) with the coverage interval shaded and each limit
  * marked.  Template run_hist.gp.  Errors as sp_plot_fit_histogram. */
-sp_status sp_plot_run_histogram(const sp_plot_output_hist *spec, const sp_plot_options *opt,
+sp_status sp_plot_run_histogram(const sp_plot_run_hist *spec, const sp_plot_options *opt,
                                 sp_plot_output *out, sp_error *err);
 
 /* The exceedance curve P(Y > y) on a logarithmic axis. */
