@@ -1001,6 +1001,7 @@ static sp_status make_bins(const double *x, size_t n, size_t nreq, double res, b
   memset(b, 0, sizeof *b);
   double lo = x[0], hi = x[n - 1], range = hi - lo;
   double h;
+  if (res > 0 && !isfinite(range / res)) res = 0; /* no lattice a chart could show */
   size_t nb;
   if (!(range > 0)) {
     /* Every value equal: one bin, one resolution step wide, or a
@@ -1022,12 +1023,23 @@ static sp_status make_bins(const double *x, size_t n, size_t nreq, double res, b
       h = ceil(h / res) * res;
       lo -= res / 2;
       nb = (size_t)ceil((range + res) / h);
+      /* Too many bins after rounding: take the smallest whole number of
+       * steps that needs no more than MAX_BINS (one more step covers a
+       * rounding of the division), so the bins still cover every value. */
+      if (nb > MAX_BINS) {
+        h = ceil((range + res) / MAX_BINS / res) * res;
+        nb = (size_t)ceil((range + res) / h);
+        if (nb > MAX_BINS) {
+          h += res;
+          nb = (size_t)ceil((range + res) / h);
+        }
+      }
     } else {
       nb = nreq > 0 ? nreq : (size_t)ceil(range / h);
       if (nb < 1) nb = 1;
+      if (nb > MAX_BINS) nb = MAX_BINS;
       h = range / (double)nb;
     }
-    if (nb > MAX_BINS) nb = MAX_BINS;
   }
   b->edges = malloc((nb + 1) * sizeof *b->edges);
   b->counts = calloc(nb, sizeof *b->counts);

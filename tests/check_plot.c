@@ -496,6 +496,27 @@ START_TEST(test_histogram_bins_closed_form)
     ck_assert(v[4 * k + 3] == want[k]);
   }
   free(v);
+  /* An outlier far out makes Freedman-Diaconis ask for 100000 bins: the
+   * chart gets at most 500, still covering every value, and with the
+   * resolution 0.001 the width stays a whole number of steps. */
+  static double w[1001];
+  for (int i = 0; i < 1000; i++) w[i] = i / 1000.0;
+  w[1000] = 10000.0;
+  f.x = w;
+  f.n = 1001;
+  f.resolution = 0.001;
+  opts(&o, dir, "bins_capped");
+  o.gnuplot = "";
+  ck_assert_msg(sp_plot_fit_histogram(&f, &o, &out, &err) == SP_OK, "%s", err.msg);
+  v = read_block(out.data, 0, &rows, &cols);
+  ck_assert_msg(rows >= 400 && rows <= 500, "%zu bins", rows);
+  double total = 0;
+  for (size_t k = 0; k < rows; k++) total += v[4 * k + 3];
+  ck_assert(total == 1001.0);
+  ck_assert(v[4 * (rows - 1) + 1] > 10000.0);
+  double steps = (v[1] - v[0]) / 0.001;
+  ASSERT_ABS(steps, round(steps), 1e-6);
+  free(v);
   rm_tree(dir);
 }
 END_TEST
