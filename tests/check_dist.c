@@ -91,7 +91,12 @@ START_TEST(test_registry_flags_kinds_defaults)
   ck_assert_uint_eq(fam("triangular")->flags, SP_FAMILY_PROPAGATE);
   ck_assert_uint_eq(fam("beta")->flags, SP_FAMILY_PROPAGATE);
   ck_assert_uint_eq(fam("uniform")->flags, SP_FAMILY_FIT | SP_FAMILY_PROPAGATE);
-  ck_assert_uint_eq(fam("weibull")->flags, SP_FAMILY_FIT | SP_FAMILY_PROPAGATE);
+  ck_assert_uint_eq(fam("weibull")->flags,
+                    SP_FAMILY_FIT | SP_FAMILY_PROPAGATE | SP_FAMILY_CANDIDATE);
+  /* Fitted on request only (see SP_FAMILY_CANDIDATE in dist.h). */
+  const char *on_request[] = {"exponential", "exponential2", "uniform", "truncnormal"};
+  for (size_t i = 0; i < sizeof on_request / sizeof *on_request; i++)
+    ck_assert(!(fam(on_request[i])->flags & SP_FAMILY_CANDIDATE));
   /* Closed-form or specialised MLE where the brief asks for one; the
    * fitter's general minimiser elsewhere. */
   const char *with_mle[] = {"normal", "lognormal", "weibull", "gamma",

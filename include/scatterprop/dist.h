@@ -36,7 +36,13 @@ typedef enum {
 /* Family capabilities. */
 enum {
   SP_FAMILY_FIT = 1,       /* offered as a fitting candidate */
-  SP_FAMILY_PROPAGATE = 2  /* usable as a model input */
+  SP_FAMILY_PROPAGATE = 2, /* usable as a model input */
+  /* One of the default candidates of a fit.  Families that are fitted only
+   * on request: exponential (a special case of gamma and weibull that
+   * rarely suits gauge data), exponential2 and uniform (their maximum
+   * likelihood puts a boundary on an observation, which flatters AIC), and
+   * truncnormal (it needs its limits). */
+  SP_FAMILY_CANDIDATE = 4
 };
 
 typedef struct sp_family {

@@ -27,7 +27,8 @@ void cli_fit_help(FILE *out)
           "\n"
           "Options:\n"
           "  --column NAME     the numeric column to fit (required)\n"
-          "  --families LIST   comma-separated candidates (default: every family below)\n"
+          "  --families LIST   comma-separated candidates (default: the families marked\n"
+          "                    'default' below; the others on request)\n"
           "  --by LOT          also fit each lot of this text column separately\n"
           "  --select CRIT     aicc (default), aic, bic or loglik\n"
           "  --fix P=V         hold parameter P at V in every family that has it\n"
@@ -52,7 +53,7 @@ void cli_fit_help(FILE *out)
     fprintf(out, "  %-14s %s (", f->name, f->title);
     for (size_t p = 0; p < f->nparam; p++)
       fprintf(out, "%s%s", p ? ", " : "", f->param_names[p]);
-    fprintf(out, ")\n");
+    fprintf(out, ")%s\n", (f->flags & SP_FAMILY_CANDIDATE) ? "  default" : "");
   }
   fprintf(out,
           "\n"

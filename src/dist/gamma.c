@@ -373,7 +373,7 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
 const sp_family sp_dist_gamma = {
   .name = "gamma",
   .title = "Gamma",
-  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE,
+  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE | SP_FAMILY_CANDIDATE,
   .nparam = 2,
   .param_names = {"shape", "scale"},
   .param_kinds = {SP_PARAM_POSITIVE, SP_PARAM_POSITIVE},

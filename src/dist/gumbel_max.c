@@ -204,7 +204,7 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
 const sp_family sp_dist_gumbel_max = {
   .name = "gumbel_max",
   .title = "Gumbel (largest extreme value)",
-  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE,
+  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE | SP_FAMILY_CANDIDATE,
   .nparam = 2,
   .param_names = {"location", "scale"},
   .param_kinds = {SP_PARAM_REAL, SP_PARAM_POSITIVE},

@@ -128,7 +128,7 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
 const sp_family sp_dist_loglogistic = {
   .name = "loglogistic",
   .title = "Log-logistic",
-  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE,
+  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE | SP_FAMILY_CANDIDATE,
   .nparam = 2,
   .param_names = {"shape", "scale"},
   .param_kinds = {SP_PARAM_POSITIVE, SP_PARAM_POSITIVE},

@@ -133,7 +133,7 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
 const sp_family sp_dist_weibull3 = {
   .name = "weibull3",
   .title = "Weibull (3-parameter)",
-  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE,
+  .flags = SP_FAMILY_FIT | SP_FAMILY_PROPAGATE | SP_FAMILY_CANDIDATE,
   .nparam = 3,
   .param_names = {"shape", "scale", "location"},
   .param_kinds = {SP_PARAM_POSITIVE, SP_PARAM_POSITIVE, SP_PARAM_BELOW_DATA},
