@@ -15,7 +15,8 @@
  * quantiles that underflow come out as min cleanly.
  *
  * Sampler: X = G_a / (G_a + G_b) for independent standard gammas
- * (Marsaglia & Tsang 2000, gamma.c), in logs, placed from the nearer end.
+ * (Marsaglia & Tsang 2000, gamma.c), placed from the nearer end; in logs
+ * when a shape is below 1, where a gamma variate can underflow.
  *
  * A model input; fit_start (the method of moments) is provided for an
  * explicit request, but the family is not offered as an automatic fitting
@@ -163,13 +164,23 @@ static double quantile_Q(const double *t, double q)
 
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  double w = t[MAX] - t[MIN];
+  double w = t[MAX] - t[MIN], a = t[ALPHA], b = t[BETA];
+  if (a >= 1.0 && b >= 1.0) {
+    /* Both gammas are at least ~1e-5 with overwhelming probability and never
+     * underflow: the ratio is formed directly. */
+    for (size_t i = 0; i < n; i++) {
+      double ga = sp_dist_gamma_variate(a, g), gb = sp_dist_gamma_variate(b, g);
+      double s = ga + gb;
+      out[i] = ga <= gb ? t[MIN] + w * (ga / s) : t[MAX] - w * (gb / s);
+    }
+    return;
+  }
+  /* A shape below 1 can give gammas below the double range: logs. */
   for (size_t i = 0; i < n; i++) {
-    double la = sp_dist_gamma_log_variate(t[ALPHA], g);
-    double lb = sp_dist_gamma_log_variate(t[BETA], g);
+    double la = sp_dist_gamma_log_variate(a, g);
+    double lb = sp_dist_gamma_log_variate(b, g);
     double ls = sp_dist_logaddexp(la, lb);
-    double y = exp(la - ls);
-    out[i] = y <= 0.5 ? t[MIN] + w * y : t[MAX] - w * exp(lb - ls);
+    out[i] = la <= lb ? t[MIN] + w * exp(la - ls) : t[MAX] - w * exp(lb - ls);
   }
 }
 

@@ -118,6 +118,20 @@ sp_status sp_dist_need_positive(const char *fam, const sp_dist_summary *s,
   return SP_OK;
 }
 
+sp_status sp_dist_scan_positive(const char *fam, const double *x, size_t n,
+                                sp_error *err)
+{
+  int bad = n == 0;
+  for (size_t i = 0; i < n && !bad; i++)
+    bad = !(x[i] > 0.0) || !isfinite(x[i]);
+  if (!bad) return SP_OK;
+  sp_dist_summary s;
+  sp_dist_summarise(x, n, &s);
+  sp_status st = sp_dist_need_data(fam, &s, 1, err);
+  if (st == SP_OK) st = sp_dist_need_positive(fam, &s, err);
+  return st;
+}
+
 sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
                                    sp_error *err)
 {

@@ -10,8 +10,10 @@
 #include "scatterprop/dist.h"
 #include "scatterprop/rng.h"
 
-/* Euler-Mascheroni constant gamma = -psi(1) (Abramowitz & Stegun 1964,
- * Handbook of Mathematical Functions, 6.1.3), to double precision. */
+/* Euler-Mascheroni constant gamma = -psi(1), to 20 digits (Abramowitz,
+ * M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical Functions.
+ * National Bureau of Standards, Applied Mathematics Series 55, section
+ * 6.1). */
 #define SP_DIST_EULER 0.57721566490153286061
 /* log(sqrt(2*pi)), the normal density's constant. */
 #define SP_DIST_LN_SQRT_2PI 0.91893853320467274178
@@ -63,6 +65,11 @@ sp_status sp_dist_need_data(const char *fam, const sp_dist_summary *s,
  * ("lognormal needs values > 0; the data have 3 values <= 0 (min -0.2)"). */
 sp_status sp_dist_need_positive(const char *fam, const sp_dist_summary *s,
                                 sp_error *err);
+/* The checks of sp_dist_need_data(fam, s, 1) and sp_dist_need_positive in
+ * one pass of comparisons (no summary is formed unless one fails, for the
+ * message); for the fits that run over a million values. */
+sp_status sp_dist_scan_positive(const char *fam, const double *x, size_t n,
+                                sp_error *err);
 /* SP_EDATA unless all values are >= 0. */
 sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
                                    sp_error *err);
@@ -113,7 +120,7 @@ int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
  * a given location).  Every x - loc must be > 0.  Honours fix_shape and
  * fix_scale (the fixed values are read from *shape, *scale).  SP_EDATA when
  * the shape must be estimated and all values are equal, SP_ENUMERIC when the
- * iteration fails, SP_ENOMEM when n logs cannot be stored. */
+ * iteration fails. */
 sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
                               double loc, int fix_shape, int fix_scale,
                               double *shape, double *scale, sp_error *err);
@@ -131,6 +138,8 @@ sp_status sp_dist_gumbel_mle(const char *fam, const double *x, size_t n,
  * with the U^(1/a) boost for a < 1 taken in logs so tiny shapes cannot
  * underflow); beta draws its two gammas from here. */
 double sp_dist_gamma_log_variate(double a, sp_pcg64 *g);
+/* One standard Gamma(a) deviate for a >= 1 (the same method, no logs). */
+double sp_dist_gamma_variate(double a, sp_pcg64 *g);
 
 /* The families, one per file, listed in registry.c. */
 extern const sp_family sp_dist_normal;

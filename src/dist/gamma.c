@@ -98,9 +98,11 @@ typedef struct {
 } qctx;
 
 /* log P(a, x) for the standard gamma, with x = exp(u).  When P underflows
- * (x far below a) the Kummer series P = x^a e^-x / Gamma(a+1) *
- * sum_k x^k / ((a+1)...(a+k)) (Abramowitz & Stegun 1964, 6.5.29) is summed
- * in logs. */
+ * (x far below a) the series
+ *   P = x^a e^-x / Gamma(a+1) * sum_k x^k / ((a+1)...(a+k))
+ * (Abramowitz, M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical
+ * Functions. National Bureau of Standards, Applied Mathematics Series 55,
+ * section 6.5) is summed in logs. */
 static double log_P(const qctx *c, double u, double x)
 {
   if (x < 0.25 * DBL_EPSILON) return c->a * u - c->lga1;
@@ -215,6 +217,8 @@ static double mt_gamma(double a, sp_pcg64 *g)
   }
 }
 
+double sp_dist_gamma_variate(double a, sp_pcg64 *g) { return mt_gamma(a, g); }
+
 double sp_dist_gamma_log_variate(double a, sp_pcg64 *g)
 {
   if (a >= 1.0) return log(mt_gamma(a, g));
@@ -238,7 +242,7 @@ static double variance(const double *t) { return t[SHAPE] * t[SCALE] * t[SCALE];
 
 /* log a - psi(a) and its derivative 1/a - psi'(a).  For a >= 10 the
  * difference cancels, so the asymptotic series is used (Abramowitz & Stegun
- * 1964, 6.3.18 and 6.4.12, with the Bernoulli numbers B2..B14):
+ * 1964, sections 6.3 and 6.4, with the Bernoulli numbers B2..B14):
  *   log a - psi(a) = 1/(2a) + 1/(12a^2) - 1/(120a^4) + 1/(252a^6)
  *                    - 1/(240a^8) + 1/(132a^10) - 691/(32760a^12) + 1/(12a^14);
  * at a = 10 the first omitted term is below 1e-15 of the sum. */

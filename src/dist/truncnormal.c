@@ -51,7 +51,10 @@ static double log_P(double z) { return log_Q(-z); }
 /* log(Phi(a + w) - Phi(a)) for a narrow interval, from the Taylor series
  *   Phi(a + w) - Phi(a) = phi(a) sum_{k>=1} (-1)^(k-1) He_{k-1}(a) w^k / k!
  * (phi^(k)(a) = (-1)^k He_k(a) phi(a), with the probabilists' Hermite
- * polynomials He_k, Abramowitz & Stegun 1964, 22.8.8 and 22.7.14), used
+ * polynomials He_k and their recurrence He_(k+1) = a He_k - k He_(k-1):
+ * Abramowitz, M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical
+ * Functions. National Bureau of Standards, Applied Mathematics Series 55,
+ * chapter 22), used
  * where w (|a| + |a + w| + 1) <= SERIES_MAX.  There the difference of two
  * tails would cancel (it loses log10(|log Q| / (w h)) digits), while the
  * terms of the series shrink at least geometrically and its sum stays
@@ -279,14 +282,17 @@ static void support(const double *t, double *lo, double *hi)
   *hi = t[UPPER];
 }
 
+/* Only log Z is needed here (two tail evaluations, not setup's five): the
+ * log-likelihood calls this once per value. */
 static double logpdf(const double *t, double x)
 {
   if (isnan(x)) return NAN;
   if (x < t[LOWER] || x > t[UPPER]) return -INFINITY;
-  tn c;
-  setup(t, &c);
+  double a = (t[LOWER] - t[MEAN]) / t[SD], b = (t[UPPER] - t[MEAN]) / t[SD];
+  double logZ = b <= 0.0 ? log_diff(-b, -a, (t[UPPER] - t[LOWER]) / t[SD])
+                         : log_diff(a, b, (t[UPPER] - t[LOWER]) / t[SD]);
   double z = (x - t[MEAN]) / t[SD];
-  return -0.5 * z * z - log(t[SD]) - SP_DIST_LN_SQRT_2PI - c.logZ;
+  return -0.5 * z * z - log(t[SD]) - SP_DIST_LN_SQRT_2PI - logZ;
 }
 
 static double cdf_P(const double *t, double x)
@@ -354,7 +360,7 @@ static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
  * s = T - a are computed instead from the continued fraction of Laplace
  * for the Mills ratio R(a) = Q(a)/phi(a) = 1/T0,
  *   Tk = a + (k + 1)/T(k+1),  k = 0, 1, 2, ...
- * (Abramowitz & Stegun 1964, 26.2.14), evaluated backward from depth
+ * (Abramowitz & Stegun 1964, section 26.2), evaluated backward from depth
  * CF_DEPTH: with h = phi(a)/Q(a) = T0, rho = Q(b)/Q(a) = E R(b)/R(a) and
  * E = phi(b)/phi(a) = exp(-w (a + b)/2),
  *   E[s]   = (1/T1 - h E + a rho) / (1 - rho),

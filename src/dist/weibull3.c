@@ -73,7 +73,7 @@ static double skewness(double k)
 }
 
 /* The shape range searched for the moment start: skewness decreases from
- * 6.6 at k = 0.5 to -0.9 near k = 30, beyond which the Gamma-function
+ * 6.6 at k = 0.5 to -0.95 at k = 30, beyond which the Gamma-function
  * differences above lose their digits; the maximum likelihood refines the
  * start anyway. */
 #define W3_KMIN 0.5
