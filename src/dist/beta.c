@@ -136,7 +136,9 @@ static double std_lower(double a, double b, double target)
   double vm = log(a / (a + b));
   if (v0 > vm) v0 = vm;
   double root;
-  if (sp_dist_solve_increasing(lower_fdf, &c, v0, BETA_QTOL, BETA_QMAXIT, &root) != 0)
+  /* rc = 1 (bracketed, not to full tolerance) still gives the bracket's
+   * midpoint, within rounding noise of the root. */
+  if (sp_dist_solve_increasing(lower_fdf, &c, v0, BETA_QTOL, BETA_QMAXIT, &root) < 0)
     return NAN;
   double y = exp(root);
   return y < 1.0 ? y : 1.0;

@@ -267,5 +267,9 @@ int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
     t = tn;
     if (fn(t, ctx, &f, &df) != 0 || isnan(f)) return -1;
   }
+  if (isfinite(lo) && isfinite(hi)) {
+    *root = 0.5 * (lo + hi);
+    return 1;
+  }
   return -1;
 }

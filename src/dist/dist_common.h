@@ -111,7 +111,9 @@ double sp_dist_logaddexp(double a, double b);
  * Press, W.H., Teukolsky, S.A., Vetterling, W.T. & Flannery, B.P. (2007).
  * Numerical Recipes, 3rd ed., Cambridge University Press, section 9.4
  * (rtsafe).  Converged when a step is below tol * max(1, |t|).  Returns 0
- * and *root, or nonzero if no sign change was found or maxit was exceeded. */
+ * and *root when converged; 1 and the midpoint of the bracket when maxit
+ * was exceeded with a sign change bracketed (F too noisy for tol); -1 if
+ * no sign change was found or fn failed. */
 typedef int (*sp_dist_fdf)(double t, void *ctx, double *f, double *df);
 int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
                              int maxit, double *root);

@@ -11,7 +11,8 @@
  * Hilferty, M.M. (1931). The distribution of chi-square. PNAS 17(12),
  * 684-688) or, where that fails, from the leading term of the series
  * P(a, x) ~ x^a / Gamma(a + 1).  Below x = DBL_EPSILON/4 that leading term
- * is exact to rounding, so quantiles that underflow come out as 0 cleanly.
+ * is exact to rounding and is evaluated from u itself, so quantiles in or
+ * below the subnormal range come out cleanly.
  *
  * Sampler: Marsaglia, G. & Tsang, W.W. (2000). A simple method for
  * generating gamma variables. ACM Transactions on Mathematical Software
@@ -134,11 +135,20 @@ static int lower_fdf(double u, void *vc, double *f, double *df)
   return 0;
 }
 
-/* F(u) = log q - log Q(e^u), increasing; F' = x f(x) / Q. */
+/* F(u) = log q - log Q(e^u), increasing; F' = x f(x) / Q.  Below
+ * x = DBL_EPSILON/4, Q = 1 - x^a / Gamma(a + 1) to rounding, taken from u
+ * itself: exp(u) would be subnormal there for tiny shapes (whose median
+ * can be 1e-316), too coarse for Newton's method. */
 static int upper_fdf(double u, void *vc, double *f, double *df)
 {
   const qctx *c = vc;
   double x = exp(u);
+  if (x < 0.25 * DBL_EPSILON) {
+    double lp = c->a * u - c->lga1, lq = sp_dist_log1mexp(lp);
+    *f = c->ltarget - lq;
+    *df = exp(c->a * u - c->lga - lq);
+    return 0;
+  }
   double q = x == INFINITY ? 0.0 : gsl_sf_gamma_inc_Q(c->a, x);
   if (!(q > 0.0)) {
     *f = INFINITY;
@@ -169,9 +179,11 @@ static double std_quantile(double a, double target, int upper)
     if (us > u0) u0 = us;
   }
   double root;
+  /* rc = 1 (bracketed, not to full tolerance) still gives the bracket's
+   * midpoint, within rounding noise of the root. */
   int rc = sp_dist_solve_increasing(upper ? upper_fdf : lower_fdf, &c, u0,
                                     GAMMA_QTOL, GAMMA_QMAXIT, &root);
-  if (rc != 0) return NAN;
+  if (rc < 0) return NAN;
   return exp(root);
 }
 
@@ -347,10 +359,12 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   } else {
     st = sp_dist_need_spread("gamma", &s, err);
     if (st != SP_OK) return st;
-    /* s = log(mean) - mean(log x) = mean(d - log1p(d)) - mean(d) with
-     * d = (x - mean)/mean: the first sum has positive terms (no
-     * cancellation; GSL's log_1plusx_mx keeps small d exact) and the second
-     * only corrects the rounding of the mean.  Direct log(mean) -
+    /* With m the computed mean, d = x/m - 1 and md = mean(d) (zero up to
+     * the rounding of m):
+     *   s = log(mean) - mean(log x) = log1p(md) - mean(log1p(d))
+     *     = mean(d - log1p(d)) - (md - log1p(md)),
+     * whose first sum has positive terms ~d^2/2 (GSL's log_1plusx_mx keeps
+     * small d exact) and whose second is of order md^2.  Direct log(mean) -
      * mean(log x) would lose digits when the spread is small (large a). */
     double s1 = 0.0, s2 = 0.0;
     for (size_t i = 0; i < n; i++) {
@@ -358,7 +372,7 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
       s1 -= gsl_sf_log_1plusx_mx(d);
       s2 += d;
     }
-    c.s = (s1 - s2) / (double)n;
+    c.s = s1 / (double)n + gsl_sf_log_1plusx_mx(s2 / (double)n);
     if (!(c.s > 0.0)) return sp_dist_need_spread("gamma", &s, err);
     double a0 = (3.0 - c.s + sqrt((c.s - 3.0) * (c.s - 3.0) + 24.0 * c.s)) /
                 (12.0 * c.s);

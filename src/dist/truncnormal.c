@@ -192,18 +192,30 @@ static double core_zQ(const tn *c, double q)
   return -z_from_log_Q(sp_dist_logaddexp(c->lPa, log1p(-q) + c->logZ));
 }
 
-/* For a narrow interval (the series regime): the standardised distance
- * d in [0, w] from the limit a (lower limit; or -b, for mass below the upper
- * limit, by symmetry) holding mass target * Z, by Newton's method on
- * log D(a, d) - log(target Z), D(a, d) = Phi(a + d) - Phi(a).  D is nearly
- * linear there (phi varies by at most e^(1/2) over the interval), so the
- * start d = target w is close and a few steps reach rounding level; the
- * quantile is then formed as limit +- sd d, keeping its digits relative to
- * the width of the interval. */
-static double narrow_distance(const tn *c, double a, double target)
+/* Near a finite limit (the whole of a narrow interval, or the part of any
+ * interval next to a finite limit that holds the target mass): the
+ * standardised distance d in [0, w] from the limit a (the lower limit; or
+ * -b, for mass below the upper limit b, by symmetry) holding mass
+ * target * Z, by Newton's method on log D(a, d) - log(target Z) with
+ * D(a, d) = Phi(a + d) - Phi(a) from the series.  D is nearly linear there
+ * (phi varies by at most e^(1/2)), so the start d0 = target Z / phi(a) is
+ * close and a few steps reach rounding level; the quantile is then formed
+ * as limit +- sd d, keeping its digits relative to its distance from the
+ * limit.  (Forming the tail target from log Q instead would round it on
+ * the scale of Q(a), up to 1/2 when the limit is near the mean.) */
+static double limit_start(const tn *c, double a, double target)
+{
+  return exp(log(target) + c->logZ + 0.5 * a * a + SP_DIST_LN_SQRT_2PI);
+}
+
+static int in_series(double a, double d)
+{
+  return d * (2.0 * fabs(a) + d + 1.0) <= 0.5 * SERIES_MAX;
+}
+
+static double limit_distance(const tn *c, double a, double target, double d)
 {
   double lt = log(target) + c->logZ;
-  double d = target * c->w;
   for (int i = 0; i < 50 && d > 0.0; i++) {
     double ld = log_diff_series(a, d);
     double z = a + d;
@@ -218,14 +230,17 @@ static double narrow_distance(const tn *c, double a, double target)
   return d;
 }
 
-static double narrow_quantile(const tn *c, double mass, int from_upper)
+/* The quantile with mass (<= 1/2) above the lower limit (from_upper = 0)
+ * or below the upper limit (from_upper = 1), if it lies in the series
+ * regime of that limit; NAN otherwise. */
+static double near_limit_quantile(const tn *c, double mass, int from_upper)
 {
-  if (mass > 0.5) {
-    mass = 1.0 - mass;
-    from_upper = !from_upper;
-  }
-  if (from_upper) return c->hi - c->sd * narrow_distance(c, -c->b0, mass);
-  return c->lo + c->sd * narrow_distance(c, c->a0, mass);
+  double a = from_upper ? -c->b0 : c->a0;
+  if (!isfinite(a)) return NAN;
+  double d0 = c->narrow ? mass * c->w : limit_start(c, a, mass);
+  if (!c->narrow && !in_series(a, d0)) return NAN;
+  double d = limit_distance(c, a, mass, d0);
+  return from_upper ? c->hi - c->sd * d : c->lo + c->sd * d;
 }
 
 static double clamp(const tn *c, double x)
@@ -238,7 +253,10 @@ static double clamp(const tn *c, double x)
 static double quantile_P_c(const tn *c, double p)
 {
   if (!(p >= 0.0 && p <= 1.0)) return NAN;
-  if (c->narrow && p > 0.0 && p < 1.0) return clamp(c, narrow_quantile(c, p, 0));
+  if (p > 0.0 && p < 1.0) {
+    double x = p <= 0.5 ? near_limit_quantile(c, p, 0) : near_limit_quantile(c, 1.0 - p, 1);
+    if (!isnan(x)) return clamp(c, x);
+  }
   if (c->mirror) return clamp(c, c->mu - c->sd * core_zQ(c, p));
   return clamp(c, c->mu + c->sd * core_zP(c, p));
 }
@@ -246,7 +264,10 @@ static double quantile_P_c(const tn *c, double p)
 static double quantile_Q_c(const tn *c, double q)
 {
   if (!(q >= 0.0 && q <= 1.0)) return NAN;
-  if (c->narrow && q > 0.0 && q < 1.0) return clamp(c, narrow_quantile(c, q, 1));
+  if (q > 0.0 && q < 1.0) {
+    double x = q <= 0.5 ? near_limit_quantile(c, q, 1) : near_limit_quantile(c, 1.0 - q, 0);
+    if (!isnan(x)) return clamp(c, x);
+  }
   if (c->mirror) return clamp(c, c->mu - c->sd * core_zP(c, q));
   return clamp(c, c->mu + c->sd * core_zQ(c, q));
 }
