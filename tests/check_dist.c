@@ -1150,6 +1150,14 @@ START_TEST(test_density_edges)
     ck_assert_msg(f->logpdf(c, 0.0) == -INFINITY, "%s", names[i]);
     ck_assert(f->logpdf(c, -1.0) == -INFINITY);
   }
+  /* Gamma with a huge shape near its mean, where the direct form cancels
+   * terms of size a log a ~ 2.5e12: mpmath 1.3.0 (60 digits)
+   * (a - 1) log(x/s) - x/s - loggamma(a) - log(s) for a = 1e11, s = 2e-11,
+   * x = 2.000002: 11.002131331037784645.  The rounding of x/s (relative
+   * eps, amplified by a r = 1e5 in a log1pmx(r)) allows ~1e-11 absolute;
+   * the direct form would be off by ~1e-3. */
+  const double gh[2] = {1e11, 2e-11};
+  ASSERT_ABS(fam("gamma")->logpdf(gh, 2.000002), 11.002131331037784645, 1e-10);
   /* Beta with alpha = 1 at min: density beta/w (closed form 3/2). */
   const double bt[4] = {1, 3, 0, 2};
   /* via GSL's lnbeta(1, 3), good to ~1e-15 absolute */
@@ -1563,6 +1571,16 @@ START_TEST(test_fit_mle_iterative)
   ASSERT_REL(t[0], 2351028.9237222779745, 1e-11);
   ASSERT_REL(t[1], 0.00042536340432738948851, 1e-11);
 
+  /* Gamma with one value far below the others: (x - mean)/mean rounds to
+   * -1 there, so d - log1p(d) is taken as d - log(x/mean).  mpmath 1.3.0
+   * (60 digits) root of log a - psi(a) = log(mean) - mean(log x) for
+   * {1e-39, 1e-4, 2e-4, 3e-4}: 0.0440113880702276513, scale
+   * 0.003408208797246964764. */
+  const double xt[4] = {1e-39, 1e-4, 2e-4, 3e-4};
+  ck_assert_int_eq(fam("gamma")->fit_mle(xt, 4, NULL, t, NULL), SP_OK);
+  ASSERT_REL(t[0], 0.0440113880702276513, 1e-13);
+  ASSERT_REL(t[1], 0.003408208797246964764, 1e-13);
+
   /* All fixed: SP_OK, parameters untouched. */
   for (size_t i = 0; i < sp_family_count(); i++) {
     const sp_family *f = sp_family_at(i);
@@ -1723,6 +1741,15 @@ START_TEST(test_fit_errors)
     ck_assert_msg(fam(spread[i])->fit_mle(same, 4, NULL, t, &err) == SP_EDATA, "%s", spread[i]);
     ck_assert_msg(strstr(err.msg, "cannot be estimated") != NULL, "%s: %s", spread[i], err.msg);
   }
+  /* Values that differ, but whose squared deviations underflow: an error,
+   * never SP_OK with an sd of 0. */
+  const double tiny[3] = {1e-200, 2e-200, 3e-200};
+  sp_error_clear(&err);
+  ck_assert_int_eq(fam("normal")->fit_mle(tiny, 3, NULL, t, &err), SP_ENUMERIC);
+  ck_assert_str_eq(err.msg, "normal: the spread of the data (range 1e-200 to 3e-200) under- or overflows in double precision");
+  sp_error_clear(&err);
+  ck_assert_int_eq(fam("logistic")->fit_start(tiny, 3, NULL, t, &err), SP_ENUMERIC);
+  ck_assert_str_eq(err.msg, "logistic: the data give invalid parameters (logistic: scale must be > 0, got 0)");
   ck_assert_int_eq(fam("logistic")->fit_start(same, 4, NULL, t, &err), SP_EDATA);
   ck_assert_str_eq(err.msg, "logistic: all 4 values are equal (2.5), so the spread cannot be estimated");
   /* Fixed limits that exclude data. */

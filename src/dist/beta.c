@@ -202,8 +202,8 @@ static double variance(const double *t)
  * variance of y, alpha = m k and beta = (1 - m) k, k = m (1 - m)/v - 1.
  * min and max, unless fixed, start one expected gap (range/(n - 1)) beyond
  * the data, as for the uniform. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -241,6 +241,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     }
   }
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_beta, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_beta = {

@@ -152,6 +152,27 @@ sp_status sp_dist_need_spread(const char *fam, const sp_dist_summary *s,
   return SP_OK;
 }
 
+sp_status sp_dist_spread_failure(const char *fam, const sp_dist_summary *s,
+                                 sp_error *err)
+{
+  sp_status st = sp_dist_need_spread(fam, s, err);
+  if (st != SP_OK) return st;
+  return sp_fail(err, SP_ENUMERIC,
+                 "%s: the spread of the data (range %g to %g) under- or "
+                 "overflows in double precision", fam, s->min, s->max);
+}
+
+sp_status sp_dist_validate_fit(const sp_family *fam, sp_status st,
+                               const double *theta, sp_error *err)
+{
+  if (st != SP_OK) return st;
+  sp_error e;
+  sp_error_clear(&e);
+  if (fam->check(theta, &e) == SP_OK) return SP_OK;
+  return sp_fail(err, SP_ENUMERIC, "%s: the data give invalid parameters (%s)",
+                 fam->name, e.msg);
+}
+
 void sp_dist_log_moments(const double *x, size_t n, double *mean_log,
                          double *m2_log)
 {

@@ -78,6 +78,18 @@ sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
 sp_status sp_dist_need_spread(const char *fam, const sp_dist_summary *s,
                               sp_error *err);
 
+/* For a spread that came out zero or non-finite: SP_EDATA (as
+ * sp_dist_need_spread) when the values are all equal, SP_ENUMERIC when they
+ * differ but their spread under- or overflows once squared. Never SP_OK. */
+sp_status sp_dist_spread_failure(const char *fam, const sp_dist_summary *s,
+                                 sp_error *err);
+/* The last step of every fit_start and fit_mle: st unless it is SP_OK; then
+ * SP_OK if theta passes fam->check, else SP_ENUMERIC quoting the check (the
+ * data were representable, the parameters they give are not, e.g. a
+ * variance of 1e-400). */
+sp_status sp_dist_validate_fit(const sp_family *fam, sp_status st,
+                               const double *theta, sp_error *err);
+
 /* Mean and sum of squared deviations of log(x) (two passes), for x > 0. */
 void sp_dist_log_moments(const double *x, size_t n, double *mean_log,
                          double *m2_log);

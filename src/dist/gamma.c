@@ -42,6 +42,9 @@ enum { SHAPE, SCALE };
 /* Maximum-likelihood tolerance on log shape (Newton is quadratic, so the
  * iterate after a 1e-12 step is accurate to rounding). */
 #define GAMMA_TOL 1e-12
+/* From this shape on, logpdf uses the saddle-point form (below, the direct
+ * form loses at most log10(a log a) ~ 1.4 digits). */
+#define GAMMA_SADDLE_A 10.0
 #define GAMMA_MAXIT 200
 
 static sp_status check(const double *t, sp_error *err)
@@ -69,6 +72,19 @@ static double logpdf(const double *t, double x)
     return -log(t[SCALE]);
   }
   double y = x / t[SCALE];
+  if (a >= GAMMA_SADDLE_A && fabs(y - a) < 0.5 * a) {
+    /* (a - 1) log y - y - lgamma(a), with lgamma(a) = (a - 1/2) log a - a +
+     * log sqrt(2 pi) + log Gamma*(a) (GSL's gammastar) and r = y/a - 1:
+     *   a log1pmx(r) - log1p(r) - log sqrt(2 pi a) - log Gamma*(a),
+     * the same value without the cancellation of terms of size a log a
+     * (which costs 1e-3 absolute at a = 1e11 in the direct form).  Used
+     * within half the mean of the mean: further out log f is itself of
+     * order a and the direct form is accurate relative to it, while 1 + r
+     * would lose digits as x goes to 0. */
+    double r = (y - a) / a;
+    return a * gsl_sf_log_1plusx_mx(r) - log1p(r) - 0.5 * log(a) -
+           SP_DIST_LN_SQRT_2PI - log(gsl_sf_gammastar(a)) - log(t[SCALE]);
+  }
   double ly = y >= DBL_MIN ? log(y) : log(x) - log(t[SCALE]);
   return (a - 1.0) * ly - y - gsl_sf_lngamma(a) - log(t[SCALE]);
 }
@@ -310,8 +326,8 @@ static sp_status need_gamma_data(const double *x, size_t n, sp_dist_summary *s,
 
 /* Method of moments: shape = mean^2 / var, scale = var / mean (var with the
  * n denominator); with one fixed, the other from the mean. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_status st = need_gamma_data(x, n, &s, err);
@@ -332,8 +348,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   int fa = sp_dist_is_fixed(fixed, SHAPE), fs = sp_dist_is_fixed(fixed, SCALE);
   if (fa && fs) return SP_OK;
@@ -369,11 +385,16 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
     double s1 = 0.0, s2 = 0.0;
     for (size_t i = 0; i < n; i++) {
       double d = (x[i] - s.mean) / s.mean;
-      s1 -= gsl_sf_log_1plusx_mx(d);
+      /* Far from the mean, d - log1p(d) has no cancellation, and d itself
+       * may round to -1 for x << mean: log of the ratio instead. */
+      if (fabs(d) < 0.5)
+        s1 -= gsl_sf_log_1plusx_mx(d);
+      else
+        s1 += d - log(x[i] / s.mean);
       s2 += d;
     }
     c.s = s1 / (double)n + gsl_sf_log_1plusx_mx(s2 / (double)n);
-    if (!(c.s > 0.0)) return sp_dist_need_spread("gamma", &s, err);
+    if (!(c.s > 0.0) || !isfinite(c.s)) return sp_dist_spread_failure("gamma", &s, err);
     double a0 = (3.0 - c.s + sqrt((c.s - 3.0) * (c.s - 3.0) + 24.0 * c.s)) /
                 (12.0 * c.s);
     rc = sp_dist_solve_increasing(shape_fdf, &c, log(a0), GAMMA_TOL,
@@ -386,6 +407,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   t[SHAPE] = exp(root);
   if (!fs) t[SCALE] = s.mean / t[SHAPE];
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gamma, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gamma, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_gamma = {

@@ -511,8 +511,8 @@ static double variance(const double *t)
 /* Starting values: the limits must be given (a limit that is not flagged
  * fixed takes its default, -inf or +inf); mean and sd from the sample
  * moments, which a general minimiser then corrects for the truncation. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   if (!sp_dist_is_fixed(fixed, LOWER)) t[LOWER] = -INFINITY;
   if (!sp_dist_is_fixed(fixed, UPPER)) t[UPPER] = INFINITY;
@@ -536,6 +536,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     t[SD] = sqrt(s.m2 / (double)n);
   }
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_truncnormal, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_truncnormal = {

@@ -322,8 +322,8 @@ static sp_status need_weibull_data(const double *x, size_t n, sp_error *err)
 /* Starting values from the moments of log x (log X is Gumbel-min with scale
  * 1/k and location log scale): k = pi / (sd(log x) sqrt 6),
  * scale = exp(mean(log x) + gamma/k). */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_status st = need_weibull_data(x, n, err);
   if (st != SP_OK) return st;
@@ -333,7 +333,7 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     if (!(m2 > 0.0)) {
       sp_dist_summary s;
       sp_dist_summarise(x, n, &s);
-      return sp_dist_need_spread("weibull", &s, err);
+      return sp_dist_spread_failure("weibull", &s, err);
     }
     t[SHAPE] = SP_DIST_PI / (sqrt(m2 / (double)n) * sqrt(6.0));
   }
@@ -346,8 +346,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
   sp_status st = need_weibull_data(x, n, err);
@@ -355,6 +355,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   return sp_dist_weibull_mle("weibull", x, n, 0.0, sp_dist_is_fixed(fixed, SHAPE),
                              sp_dist_is_fixed(fixed, SCALE), &t[SHAPE],
                              &t[SCALE], err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_weibull, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_weibull, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_weibull = {
