@@ -32,6 +32,8 @@
 
 enum { ALPHA, BETA, MIN, MAX };
 
+/* Quantile solver: tolerance 2 DBL_EPSILON on log y, and an iteration cap
+ * that bisection alone could not exhaust over the double range. */
 #define BETA_QTOL (2.0 * DBL_EPSILON)
 #define BETA_QMAXIT 200
 

@@ -73,8 +73,8 @@ sp_status sp_dist_scan_positive(const char *fam, const double *x, size_t n,
 /* SP_EDATA unless all values are >= 0. */
 sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
                                    sp_error *err);
-/* SP_EDATA when the values do not all differ (zero spread) and a spread
- * parameter has to be estimated. */
+/* SP_EDATA when all values are equal (zero spread); for fits that have to
+ * estimate a spread parameter. */
 sp_status sp_dist_need_spread(const char *fam, const sp_dist_summary *s,
                               sp_error *err);
 

@@ -21,6 +21,9 @@
 
 enum { LOC, SCALE };
 
+/* Tolerance on log scale: Newton is quadratic, so the iterate after a step
+ * below 1e-12 is accurate to rounding; the cap is far beyond what the
+ * bracketing (halving at worst) needs over the double range. */
 #define GUMBEL_TOL 1e-12
 #define GUMBEL_MAXIT 200
 
