@@ -10,6 +10,8 @@
 static const cli_command commands[] = {
   {"summary", "check an inspection CSV and describe its numeric columns",
    cli_summary_run, cli_summary_help},
+  {"fit", "fit distribution families to a column, rank them, write a fit record",
+   cli_fit_run, cli_fit_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 

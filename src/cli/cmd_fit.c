@@ -1,0 +1,345 @@
+/* scatterprop fit: fit distribution families to one column of an
+ * inspection CSV, rank them and choose one; print the ranked table, write
+ * the fit record.  Every number comes from the library. */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "cli.h"
+#include "scatterprop/dist.h"
+#include "scatterprop/fit.h"
+#include "scatterprop/ingest.h"
+#include "scatterprop/record.h"
+
+void cli_fit_help(FILE *out)
+{
+  fprintf(out,
+          "Usage: scatterprop fit FILE.csv --column NAME [--families LIST] [--by LOT]\n"
+          "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
+          "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
+          "                       [--alpha A] [--out FIT.json] [--force] [--json]\n"
+          "\n"
+          "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
+          "(Anderson-Darling A², Kolmogorov-Smirnov D, Cramér-von Mises W²), ranks the\n"
+          "candidates by an information criterion and chooses the best one that A² does\n"
+          "not reject.\n"
+          "\n"
+          "Options:\n"
+          "  --column NAME     the numeric column to fit (required)\n"
+          "  --families LIST   comma-separated candidates (default: every family below)\n"
+          "  --by LOT          also fit each lot of this text column separately\n"
+          "  --select CRIT     aicc (default), aic, bic or loglik\n"
+          "  --fix P=V         hold parameter P at V in every family that has it\n"
+          "                    (repeatable); limits such as lower/upper may also come\n"
+          "                    from a '# lower: V' metadata line\n"
+          "  --choose FAMILY   choose this family whatever its rank\n"
+          "  --pvalues MODE    auto (published approximation where one exists, else\n"
+          "                    bootstrap; default), bootstrap, approximation or none\n"
+          "  --bootstrap B     bootstrap replicates, each refitted (default 1000)\n"
+          "  --seed S          bootstrap seed (default 1)\n"
+          "  --threads K       bootstrap threads (default: all); results do not depend on K\n"
+          "  --alpha A         A² rejection level (default 0.05)\n"
+          "  --out FIT.json    write the fit record (refuses to overwrite without --force)\n"
+          "  --force           allow --out to replace an existing file\n"
+          "  --json            print the fit record instead of the table\n"
+          "  --help            show this help\n"
+          "\n"
+          "Families:\n");
+  for (size_t i = 0; i < sp_family_count(); i++) {
+    const sp_family *f = sp_family_at(i);
+    if (!(f->flags & SP_FAMILY_FIT)) continue;
+    fprintf(out, "  %-14s %s (", f->name, f->title);
+    for (size_t p = 0; p < f->nparam; p++)
+      fprintf(out, "%s%s", p ? ", " : "", f->param_names[p]);
+    fprintf(out, ")\n");
+  }
+  fprintf(out,
+          "\n"
+          "Exit codes: 0 ok, 2 usage, 3 bad input data, 5 no family could be fitted,\n"
+          "6 I/O error.\n"
+          "\n");
+  cli_print_caution(out);
+}
+
+/* The distinct p-value methods of a fit, in order of first appearance;
+ * each gets a letter for the table. */
+typedef struct {
+  const char *text[3 * SP_FIT_MAX_FAMILIES];
+  size_t n;
+} legend;
+
+static char legend_mark(legend *l, const char *method)
+{
+  if (!method || !method[0]) return ' ';
+  for (size_t i = 0; i < l->n; i++)
+    if (strcmp(l->text[i], method) == 0) return (char)('a' + i);
+  if (l->n >= 26) return '*';
+  l->text[l->n] = method;
+  return (char)('a' + l->n++);
+}
+
+static void put_p(FILE *out, legend *l, const sp_fit_gof *g)
+{
+  if (!isfinite(g->p)) {
+    /* No p-value; the legend still says why when the fit recorded it. */
+    if (g->method[0]) fprintf(out, " %6s%c", "-", legend_mark(l, g->method));
+    else fprintf(out, " %7s", "-");
+    return;
+  }
+  char mark = legend_mark(l, g->method);
+  if (g->p < 0.001) fprintf(out, " <0.001%c", mark);
+  else if (g->bound) fprintf(out, " %c%5.3f%c", g->bound < 0 ? '<' : '>', g->p, mark);
+  else fprintf(out, " %6.3f%c", g->p, mark);
+}
+
+static void put_num(FILE *out, int width, double v)
+{
+  if (isfinite(v)) fprintf(out, " %*.2f", width, v);
+  else fprintf(out, " %*s", width, "-");
+}
+
+static void put_params(FILE *out, const sp_fit_candidate *c)
+{
+  for (size_t p = 0; p < c->nparam; p++) {
+    fprintf(out, "%s%s %.6g", p ? ", " : "", c->family->param_names[p], c->theta[p]);
+    if (c->fixed[p]) fprintf(out, " (fixed)");
+    else if (isfinite(c->se[p])) fprintf(out, " ± %.2g", c->se[p]);
+  }
+}
+
+static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
+{
+  legend l = {{0}, 0};
+  fprintf(out, "\n%s: n = %zu\n", title, r->n);
+  int fw = 8;
+  for (size_t i = 0; i < r->ncand; i++) {
+    int len = (int)strlen(r->cand[i].family->name);
+    if (len > fw) fw = len;
+  }
+  /* Verdicts first, for the column width ("²" is two bytes, one column). */
+  char (*verdict)[64] = calloc(r->ncand ? r->ncand : 1, sizeof *verdict);
+  if (!verdict) return;
+  int vw = 7;
+  for (size_t i = 0; i < r->ncand; i++) {
+    const sp_fit_candidate *c = &r->cand[i];
+    if (c->status != SP_FIT_OK) continue;
+    if ((long)i == r->chosen) snprintf(verdict[i], sizeof verdict[i], "chosen");
+    else if (c->rejected)
+      snprintf(verdict[i], sizeof verdict[i], "rejected (%s p<%g)",
+               c->judged_by == SP_FIT_GOF_W2 ? "W²" : c->judged_by == SP_FIT_GOF_D ? "D" : "A²",
+               r->opt.alpha);
+    else snprintf(verdict[i], sizeof verdict[i], "ok");
+    if (!c->converged)
+      strncat(verdict[i], ", not converged", sizeof verdict[i] - strlen(verdict[i]) - 1);
+    int len = (int)strlen(verdict[i]) - (strstr(verdict[i], "²") ? 1 : 0);
+    if (len > vw) vw = len;
+  }
+  fprintf(out, "  %4s  %-*s %10s %10s %8s %8s %8s  %-*s %s\n", "rank", fw, "family", "AICc",
+          "BIC", "A² p", "D p", "W² p", vw, "verdict", "parameters (± se)");
+  /* In rank order, then the unranked (skipped, failed) in candidate order. */
+  for (size_t pass = 0; pass < 2; pass++) {
+    for (size_t want = 1; want <= (pass == 0 ? r->ncand : 1); want++) {
+      for (size_t i = 0; i < r->ncand; i++) {
+        const sp_fit_candidate *c = &r->cand[i];
+        if (pass == 0 && c->rank != want) continue;
+        if (pass == 1 && c->rank != 0) continue;
+        if (c->status != SP_FIT_OK) {
+          fprintf(out, "  %4s  %-*s %s: %s\n", "-", fw, c->family->name,
+                  sp_fit_status_name(c->status), c->reason);
+          continue;
+        }
+        fprintf(out, "  %4zu  %-*s", c->rank, fw, c->family->name);
+        put_num(out, 10, c->aicc);
+        put_num(out, 10, c->bic);
+        for (int j = 0; j < SP_FIT_NGOF; j++) put_p(out, &l, &c->gof[j]);
+        int pad = vw + (strstr(verdict[i], "²") ? 1 : 0);
+        fprintf(out, "  %-*s ", pad, verdict[i]);
+        put_params(out, c);
+        fputc('\n', out);
+      }
+    }
+  }
+  free(verdict);
+  if (r->chosen >= 0) {
+    const sp_fit_candidate *c = &r->cand[r->chosen];
+    fprintf(out, "\nChosen: %s (%s), method %s\n", c->family->name, c->family->title,
+            sp_fit_method_name(c->method));
+    fprintf(out, "  why: %s\n", r->reason);
+    for (size_t p = 0; p < c->nparam; p++) {
+      fprintf(out, "  %-12s %.10g", c->family->param_names[p], c->theta[p]);
+      if (c->fixed[p]) fprintf(out, "  (fixed)\n");
+      else if (isfinite(c->se[p]))
+        fprintf(out, "  se %.4g, 95%% interval [%.6g, %.6g] (Wald, %s scale)\n", c->se[p],
+                c->ci_lo[p], c->ci_hi[p], c->ci_scale[p] == SP_FIT_CI_LOG ? "log" : "linear");
+      else fputc('\n', out);
+    }
+    if (!c->cov_available) fprintf(out, "  %s\n", c->cov_note);
+    if (c->reason[0]) fprintf(out, "  note: %s\n", c->reason);
+  } else {
+    fprintf(out, "\nNo family chosen: %s\n", r->reason);
+  }
+  if (l.n > 0) {
+    fprintf(out, "\np-values:\n");
+    for (size_t i = 0; i < l.n; i++) fprintf(out, "  %c  %s\n", (char)('a' + i), l.text[i]);
+  }
+}
+
+static int split_families(const char *list, char **buf, const char ***names, size_t *n)
+{
+  size_t len = strlen(list);
+  *buf = malloc(len + 1);
+  *names = calloc(len / 2 + 2, sizeof **names);
+  if (!*buf || !*names) return 0;
+  memcpy(*buf, list, len + 1);
+  *n = 0;
+  for (char *s = *buf; *s;) {
+    char *e = strchr(s, ',');
+    if (e) *e = '\0';
+    if (*s) (*names)[(*n)++] = s;
+    if (!e) break;
+    s = e + 1;
+  }
+  return 1;
+}
+
+int cli_fit_run(int argc, char **argv)
+{
+  const char *file = NULL, *column = NULL, *by = NULL, *families = NULL, *outpath = NULL;
+  int json = 0, force = 0, rc = CLI_OK;
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  sp_error err;
+  sp_error_clear(&err);
+  for (int i = 1; i < argc && rc == CLI_OK; i++) {
+    const char *v;
+    int m;
+    unsigned long long u;
+    if ((m = cli_opt_value("fit", argc, argv, &i, "--column", &v, &rc)) != 0) {
+      if (m > 0) column = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--families", &v, &rc)) != 0) {
+      if (m > 0) families = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--by", &v, &rc)) != 0) {
+      if (m > 0) by = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--select", &v, &rc)) != 0) {
+      if (m > 0 && sp_fit_select_parse(v, &o.select, &err) != SP_OK)
+        rc = cli_usage("fit", "--select: %s", err.msg);
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--pvalues", &v, &rc)) != 0) {
+      if (m > 0 && sp_fit_pvalue_mode_parse(v, &o.pvalue, &err) != SP_OK)
+        rc = cli_usage("fit", "--pvalues: %s", err.msg);
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--fix", &v, &rc)) != 0) {
+      if (m > 0 && sp_fit_options_fix_parse(&o, v, &err) != SP_OK)
+        rc = cli_usage("fit", "--fix: %s", err.msg);
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--choose", &v, &rc)) != 0) {
+      if (m > 0) o.force_family = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--bootstrap", &v, &rc)) != 0) {
+      if (m > 0 && cli_parse_u64("fit", "--bootstrap", v, &u, &rc)) {
+        if (u < 1 || u > 100000000ULL) rc = cli_usage("fit", "--bootstrap: B must be 1..1e8");
+        else o.bootstrap_B = (size_t)u;
+      }
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--seed", &v, &rc)) != 0) {
+      if (m > 0 && cli_parse_u64("fit", "--seed", v, &u, &rc)) o.seed = u;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--threads", &v, &rc)) != 0) {
+      if (m > 0 && cli_parse_u64("fit", "--threads", v, &u, &rc)) {
+        if (u < 1 || u > 1024) rc = cli_usage("fit", "--threads: K must be 1..1024");
+        else o.threads = (int)u;
+      }
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--alpha", &v, &rc)) != 0) {
+      if (m > 0 && cli_parse_double("fit", "--alpha", v, &o.alpha, &rc) &&
+          !(o.alpha > 0 && o.alpha < 1))
+        rc = cli_usage("fit", "--alpha: must be between 0 and 1, got %s", v);
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--out", &v, &rc)) != 0) {
+      if (m > 0) outpath = v;
+    } else if (cli_opt_flag(argv, i, "--force")) {
+      force = 1;
+    } else if (cli_opt_flag(argv, i, "--json")) {
+      json = 1;
+    } else if (argv[i][0] == '-' && argv[i][1] != '\0') {
+      rc = cli_usage("fit", "unknown option '%s'", argv[i]);
+    } else if (!file) {
+      file = argv[i];
+    } else {
+      rc = cli_usage("fit", "one CSV file at a time (got '%s' and '%s')", file, argv[i]);
+    }
+  }
+  if (rc == CLI_OK && !file) rc = cli_usage("fit", "no CSV file given");
+  if (rc == CLI_OK && !column) rc = cli_usage("fit", "--column NAME is required");
+  if (rc != CLI_OK) return rc;
+
+  char *fambuf = NULL;
+  const char **famnames = NULL;
+  if (families) {
+    size_t nf = 0;
+    if (!split_families(families, &fambuf, &famnames, &nf)) {
+      free(fambuf);
+      free(famnames);
+      fprintf(stderr, "scatterprop: error: out of memory\n");
+      return CLI_NUMERIC;
+    }
+    if (nf == 0) {
+      free(fambuf);
+      free(famnames);
+      return cli_usage("fit", "--families: empty list");
+    }
+    o.families = famnames;
+    o.nfamilies = nf;
+  }
+
+  sp_ingest_options io;
+  sp_ingest_options_init(&io);
+  sp_table *t = NULL;
+  sp_fit_grouped g;
+  memset(&g, 0, sizeof g);
+  char *text = NULL;
+  if (sp_table_read(file, &io, &t, &err) != SP_OK ||
+      sp_fit_table(t, column, by, &o, &g, &err) != SP_OK) {
+    rc = cli_report(&err);
+    goto done;
+  }
+  const sp_column *col = sp_table_column(t, column);
+  sp_record_fit_source src = {t->path, t->size, t->sha256, t->meta, t->nmeta, col->name,
+                              col->unit_text, by, g.pooled_missing, (int64_t)time(NULL)};
+  if (json || outpath) {
+    sp_status st = by ? sp_record_fit_grouped_dumps(&g, &src, &text, &err)
+                      : sp_record_fit_dumps(&g.pooled, &src, &text, &err);
+    if (st != SP_OK) {
+      rc = cli_report(&err);
+      goto done;
+    }
+  }
+  if (outpath && sp_record_write_text(outpath, text, force, &err) != SP_OK) {
+    if (err.code == SP_EIO && !force) sp_error_hint(&err, "use --force to replace it");
+    rc = cli_report(&err);
+    goto done;
+  }
+  if (json) {
+    printf("%s\n", text);
+  } else {
+    printf("%s: column %s", t->path, col->name);
+    if (col->unit_text) printf(" [%s]", col->unit_text);
+    printf(", %zu value%s used, %zu missing\n", g.pooled.n, g.pooled.n == 1 ? "" : "s",
+           g.pooled_missing);
+    printf("sha256 %s, %llu bytes\n", t->sha256, (unsigned long long)t->size);
+    for (size_t i = 0; i < g.ngroups; i++) {
+      char title[SP_FIT_TEXT_MAX + 64];
+      snprintf(title, sizeof title, "%s = %s", by, g.groups[i].label);
+      if (g.groups[i].status != SP_OK) {
+        printf("\n%s: not fitted: %s\n", title, g.groups[i].message);
+        continue;
+      }
+      print_fit(stdout, &g.groups[i].fit, title);
+    }
+    print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
+    if (outpath) printf("\nfit record written to %s\n", outpath);
+    printf("\n");
+    cli_print_caution(stdout);
+  }
+  if (g.pooled.chosen < 0) rc = CLI_NUMERIC;
+done:
+  free(text);
+  sp_fit_grouped_clear(&g);
+  sp_table_free(t);
+  free(fambuf);
+  free(famnames);
+  return rc;
+}

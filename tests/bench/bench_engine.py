@@ -1,0 +1,94 @@
+#!/usr/bin/python3
+"""Engine benchmark: runs bench_engine (engine on 1 and 2 threads, scalar C
+loop) and times the same computation vectorised in numpy in the same run,
+then prints the figures and the ratios against the goals.
+
+    /usr/bin/python3 tests/bench/bench_engine.py BUILD/tests/bench_engine [N]
+
+The numpy version draws with numpy's own generator (default_rng; the same
+distributions, not the same streams), evaluates the spring model on whole
+arrays, and takes mean, standard deviation and the same 15 percentiles with
+np.percentile (its default, linear = Hyndman-Fan 7, the engine's
+definition).  Not a test: machines are noisy, so every figure is the best of
+REPEAT runs.
+"""
+import subprocess
+import sys
+import time
+
+REPEAT = 2
+PCTS = [0.1, 0.5, 1, 2.5, 5, 10, 25, 50, 75, 90, 95, 97.5, 99, 99.5, 99.9]
+
+
+def numpy_run(n):
+    import numpy as np
+
+    t0 = time.perf_counter()
+    rng = np.random.default_rng(20240601)
+    d = rng.normal(2.0, 0.004, n)
+    dm = rng.normal(16.0, 0.075, n)
+    g = rng.normal(79300.0, 900.0, n)
+    f = 120.0 * rng.weibull(8.0, n)
+    c = dm / d
+    rate = g * d**4 / (8.0 * dm**3 * 8.0)
+    stress = ((4.0 * c - 1.0) / (4.0 * c - 4.0) + 0.615 / c) * 8.0 * f * dm / (np.pi * d**3)
+    out = []
+    for y in (rate, stress):
+        out.append((y.mean(), y.std(ddof=1), np.percentile(y, PCTS)))
+    return time.perf_counter() - t0, out
+
+
+def c_run(exe, n):
+    res = subprocess.run([exe, str(n)], check=False, capture_output=True, text=True)
+    if res.returncode != 0:
+        sys.exit("bench_engine failed (%d): %s%s" % (res.returncode, res.stdout, res.stderr))
+    fig = {}
+    for line in res.stdout.splitlines():
+        parts = line.split()
+        if len(parts) == 2:
+            fig[parts[0]] = float(parts[1])
+    return fig, res.stdout
+
+
+def main():
+    if len(sys.argv) < 2:
+        sys.exit(__doc__)
+    exe = sys.argv[1]
+    n = int(sys.argv[2]) if len(sys.argv) > 2 else 10_000_000
+    best = {}
+    text = ""
+    for _ in range(REPEAT):
+        fig, text = c_run(exe, n)
+        for k, v in fig.items():
+            if k.endswith("_s"):
+                best[k] = min(best.get(k, v), v)
+            else:
+                best.setdefault(k, v)
+    t_np = min(numpy_run(n)[0] for _ in range(REPEAT))
+    _, npres = numpy_run(min(n, 1_000_000))
+
+    e1, e2, sc = best["engine_1t_s"], best["engine_2t_s"], best["scalar_s"]
+    print("spring model, %d samples, best of %d runs" % (n, REPEAT))
+    print("  engine, 1 thread   %8.3f s  %7.1f ns/sample  (blocks %.3f s, summaries %.3f s)"
+          % (e1, 1e9 * e1 / n, best["engine_1t_blocks_s"], best["engine_1t_summary_s"]))
+    print("  engine, 2 threads  %8.3f s  %7.1f ns/sample  (blocks %.3f s, summaries %.3f s)"
+          % (e2, 1e9 * e2 / n, best["engine_2t_blocks_s"], best["engine_2t_summary_s"]))
+    print("  scalar C loop      %8.3f s  %7.1f ns/sample" % (sc, 1e9 * sc / n))
+    print("  numpy              %8.3f s  %7.1f ns/sample" % (t_np, 1e9 * t_np / n))
+    print("ratios (goal in brackets)")
+    print("  scalar / engine 1 thread   %6.2f   [>= 1]" % (sc / e1))
+    print("  engine 1 / 2 threads       %6.2f   [>= 1.7]" % (e1 / e2))
+    print("  numpy / engine 2 threads   %6.2f   [>= 5]" % (t_np / e2))
+    print("  numpy / engine 1 thread    %6.2f" % (t_np / e1))
+    print("  summaries share, 1 thread  %6.2f   [percentiles must not dominate]"
+          % (best["engine_1t_summary_s"] / e1))
+    print("  engine 1 thread ns/sample  %6.1f   [aim 25]" % (1e9 * e1 / n))
+    print("checks: percentiles identical to the scalar loop: %d; threads bit-identical: %d"
+          % (best["percentiles_identical_to_scalar"], best["threads_bit_identical"]))
+    print("numpy (1e6 samples): rate mean %.6f sd %.6f; stress mean %.4f sd %.4f p99.9 %.4f"
+          % (npres[0][0], npres[0][1], npres[1][0], npres[1][1], npres[1][2][-1]))
+    print("engine: " + " | ".join(l for l in text.splitlines() if l.startswith(("rate_", "stress_"))))
+
+
+if __name__ == "__main__":
+    main()
