@@ -1064,6 +1064,14 @@ START_TEST(test_far_tails)
    * below the double range: 0 exactly, not NaN. */
   const double gs[2] = {0.01, 1.0};
   ck_assert(gf->quantile_P(gs, 1e-5) == 0.0);
+  /* Shape 0.00096: the median is 1e-314 (subnormal), where exp(u) is too
+   * coarse for Newton's method; the solver works from u and the series
+   * term: closed form x = (Gamma(1 + a) / 2)^(1/a), mpmath 1.3.0
+   * exp((log(0.5) + loggamma(1 + a))/a) = 1.0563333070977747026e-314.  A
+   * subnormal has fewer digits: compared to 1e-9. */
+  const double gt[2] = {0.00095953198005087358, 1.0};
+  ASSERT_REL(gf->quantile_Q(gt, 0.5), 1.0563333070977747026e-314, 1e-9);
+  ASSERT_REL(gf->quantile_P(gt, 0.5), 1.0563333070977747026e-314, 1e-9);
   /* mpmath 1.3.0 root of P(0.01, x) = 0.1 (scipy 1.10.1 gamma.ppf(0.1, 0.01)
    * = 5.660738147062073e-101, 2.4e-14 off). */
   ASSERT_REL(gf->quantile_P(gs, 0.1), 5.6607381470619397893e-101, 1e-13);
@@ -1102,6 +1110,14 @@ START_TEST(test_far_tails)
   const double t12[4] = {0, 1, -1, 2};
   ASSERT_REL(tf->cdf_P(t12, -1.0 + 0x1p-40), 2.6884014155272603211e-13, 1e-14);
   ASSERT_REL(tf->quantile_P(t12, 2.6884014155272603211e-13), -1.0 + 0x1p-40, 4 * EPS);
+  /* A limit near the mean: the quantile close to it is formed as lower + sd
+   * d with d from the series, so it keeps its digits relative to d (a tail
+   * target formed on the scale of Q(lower) ~ 1/2 would leave ~1e-16
+   * absolute, 100 ulps of lower).  mpmath 1.3.0 root of (Q(a) - Q(x))/Q(a)
+   * = 1e-10 for a = 0.0075673: x - a = 1.245782578292204793593e-10. */
+  const double tl[4] = {0, 1, 0.0075673, INFINITY};
+  ASSERT_REL(tf->quantile_P(tl, 1e-10) - 0.0075673, 1.245782578292204793593e-10, 1e-6);
+  ck_assert(tf->quantile_P(tl, 1e-300) == 0.0075673);
   /* One-sided above a = 3: P(3 + 2^-40), mpmath (Q(3) - Q(x))/Q(3). */
   const double t3[4] = {0, 1, 3, INFINITY};
   ASSERT_REL(tf->cdf_P(t3, 3.0 + 0x1p-40), 2.9859608320529856116e-12, 1e-14);
@@ -1139,6 +1155,14 @@ START_TEST(test_density_edges)
     ck_assert_msg(f->logpdf(c, 0.0) == -INFINITY, "%s", names[i]);
     ck_assert(f->logpdf(c, -1.0) == -INFINITY);
   }
+  /* Gamma with a huge shape near its mean, where the direct form cancels
+   * terms of size a log a ~ 2.5e12: mpmath 1.3.0 (60 digits)
+   * (a - 1) log(x/s) - x/s - loggamma(a) - log(s) for a = 1e11, s = 2e-11,
+   * x = 2.000002: 11.002131331037784645.  The rounding of x/s (relative
+   * eps, amplified by a r = 1e5 in a log1pmx(r)) allows ~1e-11 absolute;
+   * the direct form would be off by ~1e-3. */
+  const double gh[2] = {1e11, 2e-11};
+  ASSERT_ABS(fam("gamma")->logpdf(gh, 2.000002), 11.002131331037784645, 1e-10);
   /* Beta with alpha = 1 at min: density beta/w (closed form 3/2). */
   const double bt[4] = {1, 3, 0, 2};
   /* via GSL's lnbeta(1, 3), good to ~1e-15 absolute */
@@ -1197,6 +1221,28 @@ START_TEST(test_moments)
    * 1.0000000000014999095e-12 (= s^2 (1 + 3 s^2 / 2 + ...)). */
   const double lns[2] = {0.0, 1e-6};
   ASSERT_REL(fam("lognormal")->variance(lns), 1.0000000000014999095e-12, 4 * EPS);
+  /* truncnormal far in a tail, mirrored, and narrow: mpmath 1.3.0 at 100
+   * digits, the closed forms mean = (phi(a) - phi(b))/Z and var = 1 +
+   * (a phi(a) - b phi(b))/Z - mean^2 with Z from erfc (at 100 digits their
+   * cancellation is harmless; in doubles it would lose 4 to 10 digits, the
+   * variance's terms being near a^2 and its value near 1/a^2).  mpmath's
+   * quadrature was not used: over [40, inf) it is off by 1e-9. */
+  const sp_family *tf = fam("truncnormal");
+  const double t89[4] = {0, 1, 8, 9}, t40[4] = {0, 1, 40, INFINITY},
+               tlo[4] = {2, 0.5, -INFINITY, -8}, tnar[4] = {0, 1, -1e-3, 1e-3},
+               toff[4] = {0, 1, 0.25, 0.2501};
+  ASSERT_REL(tf->mean(t89), 8.1211889929797971226, 1e-14);
+  ASSERT_REL(tf->variance(t89), 0.014148542782748111039, 1e-14);
+  ASSERT_REL(tf->mean(t40), 40.024968847207263723, 1e-15);
+  ASSERT_REL(tf->variance(t40), 0.0006226683785913887735, 1e-14);
+  /* (below the mean, Z = ncdf(b) directly; at 300 digits) */
+  ASSERT_REL(tf->mean(tlo), -8.0248765342639252711, 1e-15);
+  ASSERT_REL(tf->variance(tlo), 0.00061581540376304089992, 1e-14);
+  /* Symmetric about the mean: mean 0 to an ulp of the width. */
+  ASSERT_ABS(tf->mean(tnar), 0.0, 4 * EPS * 2e-3);
+  ASSERT_REL(tf->variance(tnar), 3.3333328888889101917e-7, 1e-14);
+  ASSERT_REL(tf->mean(toff), 0.25004999979162499456, 1e-15);
+  ASSERT_REL(tf->variance(toff), 8.3333333302931991437e-10, 1e-13);
   /* truncnormal without truncation is the normal. */
   const double tn[4] = {5, 2, -INFINITY, INFINITY};
   ASSERT_REL(fam("truncnormal")->mean(tn), 5.0, EPS);
@@ -1503,6 +1549,43 @@ START_TEST(test_fit_mle_iterative)
   fit("gumbel_max", fix_gsc, t);
   ASSERT_REL(t[0], 14.053047783225154531, 1e-13);
 
+  /* Invariance: the Weibull fit of X * 1e-200 is the fit of X with the
+   * scale times 1e-200 (x^k for the raw data would underflow; the data are
+   * divided by their maximum), and the Gumbel fit of X + 1e6 is shifted by
+   * 1e6 (weights relative to the smallest value).  The shifted data carry
+   * a rounding of 1e-10 each, so the Gumbel scale is compared at 1e-9. */
+  double xs[25];
+  for (int i = 0; i < 25; i++) xs[i] = X25[i] * 1e-200;
+  ck_assert_int_eq(fam("weibull")->fit_mle(xs, 25, NULL, t, NULL), SP_OK);
+  ASSERT_REL(t[0], 2.7385706386478220366, 1e-13);
+  ASSERT_REL(t[1], 20.774178560138501536e-200, 1e-13);
+  for (int i = 0; i < 25; i++) xs[i] = X25[i] + 1e6;
+  ck_assert_int_eq(fam("gumbel_max")->fit_mle(xs, 25, NULL, t, NULL), SP_OK);
+  ASSERT_REL(t[0], 1e6 + 15.02410607327742516, 1e-15);
+  ASSERT_REL(t[1], 5.8372915363289259302, 1e-9);
+
+  /* Gamma on nearly constant data (coefficient of variation 6e-4, shape
+   * 2.4e6), where log(mean) - mean(log x) = 2e-7 is formed without
+   * cancellation and log a - psi(a) from its asymptotic series: mpmath
+   * 1.3.0 (60 digits) root of log a - psi(a) = log(mean) - mean(log x):
+   * 2351028.9237222779745, scale 0.00042536340432738948851.  The data's
+   * own rounding (relative 1e-16 on deviations of 5e-4) bounds the
+   * agreement at about 1e-12. */
+  const double xc[6] = {1000.0, 1001.0, 999.0, 1000.5, 999.5, 1000.25};
+  ck_assert_int_eq(fam("gamma")->fit_mle(xc, 6, NULL, t, NULL), SP_OK);
+  ASSERT_REL(t[0], 2351028.9237222779745, 1e-11);
+  ASSERT_REL(t[1], 0.00042536340432738948851, 1e-11);
+
+  /* Gamma with one value far below the others: (x - mean)/mean rounds to
+   * -1 there, so d - log1p(d) is taken as d - log(x/mean).  mpmath 1.3.0
+   * (60 digits) root of log a - psi(a) = log(mean) - mean(log x) for
+   * {1e-39, 1e-4, 2e-4, 3e-4}: 0.0440113880702276513, scale
+   * 0.003408208797246964764. */
+  const double xt[4] = {1e-39, 1e-4, 2e-4, 3e-4};
+  ck_assert_int_eq(fam("gamma")->fit_mle(xt, 4, NULL, t, NULL), SP_OK);
+  ASSERT_REL(t[0], 0.0440113880702276513, 1e-13);
+  ASSERT_REL(t[1], 0.003408208797246964764, 1e-13);
+
   /* All fixed: SP_OK, parameters untouched. */
   for (size_t i = 0; i < sp_family_count(); i++) {
     const sp_family *f = sp_family_at(i);
@@ -1663,6 +1746,15 @@ START_TEST(test_fit_errors)
     ck_assert_msg(fam(spread[i])->fit_mle(same, 4, NULL, t, &err) == SP_EDATA, "%s", spread[i]);
     ck_assert_msg(strstr(err.msg, "cannot be estimated") != NULL, "%s: %s", spread[i], err.msg);
   }
+  /* Values that differ, but whose squared deviations underflow: an error,
+   * never SP_OK with an sd of 0. */
+  const double tiny[3] = {1e-200, 2e-200, 3e-200};
+  sp_error_clear(&err);
+  ck_assert_int_eq(fam("normal")->fit_mle(tiny, 3, NULL, t, &err), SP_ENUMERIC);
+  ck_assert_str_eq(err.msg, "normal: the spread of the data (range 1e-200 to 3e-200) under- or overflows in double precision");
+  sp_error_clear(&err);
+  ck_assert_int_eq(fam("logistic")->fit_start(tiny, 3, NULL, t, &err), SP_ENUMERIC);
+  ck_assert_str_eq(err.msg, "logistic: the data give invalid parameters (logistic: scale must be > 0, got 0)");
   ck_assert_int_eq(fam("logistic")->fit_start(same, 4, NULL, t, &err), SP_EDATA);
   ck_assert_str_eq(err.msg, "logistic: all 4 values are equal (2.5), so the spread cannot be estimated");
   /* Fixed limits that exclude data. */

@@ -39,7 +39,8 @@ TOL = 1e-12
 LOOSE = {
     # GSL's incomplete gamma (gsl_sf_gamma_inc_P/Q) is good to about 1e-13
     # relative far in its tails (measured against mpmath at 40 digits: 7e-14
-    # at a = 100, x = 1000), while scipy uses Boost's igamma.
+    # at a = 100, x = 1000); scipy.special.gammainc is an independent
+    # implementation with errors of the same order.
     ("gamma", "P"): (5e-13, "GSL incomplete gamma, ~1e-13 in the tails"),
     ("gamma", "Q"): (5e-13, "GSL incomplete gamma, ~1e-13 in the tails"),
     # GSL's incomplete beta (continued fraction) likewise.
@@ -102,9 +103,10 @@ def scipy_dist(name, t):
 #  * fisk (log-logistic) sf, isf: 1 - cdf and ppf(1 - q); replaced by the
 #    closed forms 1/(1 + (x/s)^c) and s (q/(1 - q))^(-1/c) with log1p.
 #  * truncnorm: cdf/sf near a finite limit cancel (Phi(x) - Phi(a) formed
-#    from two nearly equal tails: 5e-5 relative error 3e-12 above a = -1), and
-#    isf fails beyond ~1e-20 (returns a value near 9 for q = 1e-200 above
-#    a = 3); replaced by D(u, v) / D(a, b) with D(u, v) = quad(norm.pdf, u, v)
+#    from two nearly equal tails: relative error 5e-5 at x = a + 3e-12 for
+#    a = -1, 8e-4 at x = a + 3e-13 for a = 3), its variance is 4e-11 off for
+#    [8, 9], and isf fails beyond ~1e-20 (a value near 9 for q = 1e-200
+#    above a = 3); replaced by D(u, v) / D(a, b) with D(u, v) = quad(norm.pdf, u, v)
 #    (scipy.integrate.quad, QUADPACK, epsrel 2e-14) for finite u and v and
 #    norm.sf/norm.cdf for an infinite end, and by norm.isf/norm.ppf of the
 #    target tail mass formed from the nearer limit; mean and variance by
@@ -128,7 +130,9 @@ def tn_parts(t):
 
 
 def tn_D(u, v):
-    """Phi(v) - Phi(u), u < v."""
+    """Phi(v) - Phi(u), u < v: tails where one end is infinite, a difference
+    of tails on one side of 0 only when they differ by a factor > e (v - u >
+    1 there), so that it cannot cancel, and quadrature otherwise."""
     from scipy import integrate
     if math.isinf(u):
         return stats.norm.cdf(v)

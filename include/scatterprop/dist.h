@@ -78,8 +78,12 @@ typedef struct sp_family {
    *   flagged in fixed[] must be kept.  SP_EDATA when the data lie outside
    *   every possible support (lognormal on values <= 0), with the reason.
    * fit_mle: a closed-form or specialised maximum-likelihood solution that
-   *   honours fixed[]; returns SP_OK, or SP_ENUMERIC when it did not
-   *   converge; NULL means the fitter's general minimiser is used. */
+   *   honours fixed[]; returns SP_OK (at once when every parameter is
+   *   fixed), SP_EDATA for data it cannot fit (outside the support, or too
+   *   few or all equal when a spread must be estimated; the same messages
+   *   as fit_start), or SP_ENUMERIC when it did not converge; NULL means the
+   *   fitter's general minimiser is used.
+   * fixed may be NULL for both hooks (no parameter fixed). */
   sp_status (*fit_start)(const double *x, size_t n, const int *fixed,
                          double *theta, sp_error *err);
   sp_status (*fit_mle)(const double *x, size_t n, const int *fixed,

@@ -15,7 +15,8 @@
  * quantiles that underflow come out as min cleanly.
  *
  * Sampler: X = G_a / (G_a + G_b) for independent standard gammas
- * (Marsaglia & Tsang 2000, gamma.c), in logs, placed from the nearer end.
+ * (Marsaglia & Tsang 2000, gamma.c), placed from the nearer end; in logs
+ * when a shape is below 1, where a gamma variate can underflow.
  *
  * A model input; fit_start (the method of moments) is provided for an
  * explicit request, but the family is not offered as an automatic fitting
@@ -31,6 +32,8 @@
 
 enum { ALPHA, BETA, MIN, MAX };
 
+/* Quantile solver: tolerance 2 DBL_EPSILON on log y, and an iteration cap
+ * that bisection alone could not exhaust over the double range. */
 #define BETA_QTOL (2.0 * DBL_EPSILON)
 #define BETA_QMAXIT 200
 
@@ -135,7 +138,9 @@ static double std_lower(double a, double b, double target)
   double vm = log(a / (a + b));
   if (v0 > vm) v0 = vm;
   double root;
-  if (sp_dist_solve_increasing(lower_fdf, &c, v0, BETA_QTOL, BETA_QMAXIT, &root) != 0)
+  /* rc = 1 (bracketed, not to full tolerance) still gives the bracket's
+   * midpoint, within rounding noise of the root. */
+  if (sp_dist_solve_increasing(lower_fdf, &c, v0, BETA_QTOL, BETA_QMAXIT, &root) < 0)
     return NAN;
   double y = exp(root);
   return y < 1.0 ? y : 1.0;
@@ -163,13 +168,23 @@ static double quantile_Q(const double *t, double q)
 
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  double w = t[MAX] - t[MIN];
+  double w = t[MAX] - t[MIN], a = t[ALPHA], b = t[BETA];
+  if (a >= 1.0 && b >= 1.0) {
+    /* Both gammas are at least ~1e-5 with overwhelming probability and never
+     * underflow: the ratio is formed directly. */
+    for (size_t i = 0; i < n; i++) {
+      double ga = sp_dist_gamma_variate(a, g), gb = sp_dist_gamma_variate(b, g);
+      double s = ga + gb;
+      out[i] = ga <= gb ? t[MIN] + w * (ga / s) : t[MAX] - w * (gb / s);
+    }
+    return;
+  }
+  /* A shape below 1 can give gammas below the double range: logs. */
   for (size_t i = 0; i < n; i++) {
-    double la = sp_dist_gamma_log_variate(t[ALPHA], g);
-    double lb = sp_dist_gamma_log_variate(t[BETA], g);
+    double la = sp_dist_gamma_log_variate(a, g);
+    double lb = sp_dist_gamma_log_variate(b, g);
     double ls = sp_dist_logaddexp(la, lb);
-    double y = exp(la - ls);
-    out[i] = y <= 0.5 ? t[MIN] + w * y : t[MAX] - w * exp(lb - ls);
+    out[i] = la <= lb ? t[MIN] + w * exp(la - ls) : t[MAX] - w * exp(lb - ls);
   }
 }
 
@@ -189,8 +204,8 @@ static double variance(const double *t)
  * variance of y, alpha = m k and beta = (1 - m) k, k = m (1 - m)/v - 1.
  * min and max, unless fixed, start one expected gap (range/(n - 1)) beyond
  * the data, as for the uniform. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -228,6 +243,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     }
   }
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_beta, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_beta = {

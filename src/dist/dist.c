@@ -118,6 +118,20 @@ sp_status sp_dist_need_positive(const char *fam, const sp_dist_summary *s,
   return SP_OK;
 }
 
+sp_status sp_dist_scan_positive(const char *fam, const double *x, size_t n,
+                                sp_error *err)
+{
+  int bad = n == 0;
+  for (size_t i = 0; i < n && !bad; i++)
+    bad = !(x[i] > 0.0) || !isfinite(x[i]);
+  if (!bad) return SP_OK;
+  sp_dist_summary s;
+  sp_dist_summarise(x, n, &s);
+  sp_status st = sp_dist_need_data(fam, &s, 1, err);
+  if (st == SP_OK) st = sp_dist_need_positive(fam, &s, err);
+  return st;
+}
+
 sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
                                    sp_error *err)
 {
@@ -136,6 +150,27 @@ sp_status sp_dist_need_spread(const char *fam, const sp_dist_summary *s,
                    "%s: all %zu values are equal (%g), so the spread cannot be "
                    "estimated", fam, s->n, s->min);
   return SP_OK;
+}
+
+sp_status sp_dist_spread_failure(const char *fam, const sp_dist_summary *s,
+                                 sp_error *err)
+{
+  sp_status st = sp_dist_need_spread(fam, s, err);
+  if (st != SP_OK) return st;
+  return sp_fail(err, SP_ENUMERIC,
+                 "%s: the spread of the data (range %g to %g) under- or "
+                 "overflows in double precision", fam, s->min, s->max);
+}
+
+sp_status sp_dist_validate_fit(const sp_family *fam, sp_status st,
+                               const double *theta, sp_error *err)
+{
+  if (st != SP_OK) return st;
+  sp_error e;
+  sp_error_clear(&e);
+  if (fam->check(theta, &e) == SP_OK) return SP_OK;
+  return sp_fail(err, SP_ENUMERIC, "%s: the data give invalid parameters (%s)",
+                 fam->name, e.msg);
 }
 
 void sp_dist_log_moments(const double *x, size_t n, double *mean_log,
@@ -252,6 +287,10 @@ int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
     }
     t = tn;
     if (fn(t, ctx, &f, &df) != 0 || isnan(f)) return -1;
+  }
+  if (isfinite(lo) && isfinite(hi)) {
+    *root = 0.5 * (lo + hi);
+    return 1;
   }
   return -1;
 }

@@ -10,8 +10,10 @@
 #include "scatterprop/dist.h"
 #include "scatterprop/rng.h"
 
-/* Euler-Mascheroni constant gamma = -psi(1) (Abramowitz & Stegun 1964,
- * Handbook of Mathematical Functions, 6.1.3), to double precision. */
+/* Euler-Mascheroni constant gamma = -psi(1), to 20 digits (Abramowitz,
+ * M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical Functions.
+ * National Bureau of Standards, Applied Mathematics Series 55, section
+ * 6.1). */
 #define SP_DIST_EULER 0.57721566490153286061
 /* log(sqrt(2*pi)), the normal density's constant. */
 #define SP_DIST_LN_SQRT_2PI 0.91893853320467274178
@@ -63,13 +65,30 @@ sp_status sp_dist_need_data(const char *fam, const sp_dist_summary *s,
  * ("lognormal needs values > 0; the data have 3 values <= 0 (min -0.2)"). */
 sp_status sp_dist_need_positive(const char *fam, const sp_dist_summary *s,
                                 sp_error *err);
+/* The checks of sp_dist_need_data(fam, s, 1) and sp_dist_need_positive in
+ * one pass of comparisons (no summary is formed unless one fails, for the
+ * message); for the fits that run over a million values. */
+sp_status sp_dist_scan_positive(const char *fam, const double *x, size_t n,
+                                sp_error *err);
 /* SP_EDATA unless all values are >= 0. */
 sp_status sp_dist_need_nonnegative(const char *fam, const sp_dist_summary *s,
                                    sp_error *err);
-/* SP_EDATA when the values do not all differ (zero spread) and a spread
- * parameter has to be estimated. */
+/* SP_EDATA when all values are equal (zero spread); for fits that have to
+ * estimate a spread parameter. */
 sp_status sp_dist_need_spread(const char *fam, const sp_dist_summary *s,
                               sp_error *err);
+
+/* For a spread that came out zero or non-finite: SP_EDATA (as
+ * sp_dist_need_spread) when the values are all equal, SP_ENUMERIC when they
+ * differ but their spread under- or overflows once squared. Never SP_OK. */
+sp_status sp_dist_spread_failure(const char *fam, const sp_dist_summary *s,
+                                 sp_error *err);
+/* The last step of every fit_start and fit_mle: st unless it is SP_OK; then
+ * SP_OK if theta passes fam->check, else SP_ENUMERIC quoting the check (the
+ * data were representable, the parameters they give are not, e.g. a
+ * variance of 1e-400). */
+sp_status sp_dist_validate_fit(const sp_family *fam, sp_status st,
+                               const double *theta, sp_error *err);
 
 /* Mean and sum of squared deviations of log(x) (two passes), for x > 0. */
 void sp_dist_log_moments(const double *x, size_t n, double *mean_log,
@@ -104,7 +123,9 @@ double sp_dist_logaddexp(double a, double b);
  * Press, W.H., Teukolsky, S.A., Vetterling, W.T. & Flannery, B.P. (2007).
  * Numerical Recipes, 3rd ed., Cambridge University Press, section 9.4
  * (rtsafe).  Converged when a step is below tol * max(1, |t|).  Returns 0
- * and *root, or nonzero if no sign change was found or maxit was exceeded. */
+ * and *root when converged; 1 and the midpoint of the bracket when maxit
+ * was exceeded with a sign change bracketed (F too noisy for tol); -1 if
+ * no sign change was found or fn failed. */
 typedef int (*sp_dist_fdf)(double t, void *ctx, double *f, double *df);
 int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
                              int maxit, double *root);
@@ -113,7 +134,7 @@ int sp_dist_solve_increasing(sp_dist_fdf fn, void *ctx, double t0, double tol,
  * a given location).  Every x - loc must be > 0.  Honours fix_shape and
  * fix_scale (the fixed values are read from *shape, *scale).  SP_EDATA when
  * the shape must be estimated and all values are equal, SP_ENUMERIC when the
- * iteration fails, SP_ENOMEM when n logs cannot be stored. */
+ * iteration fails. */
 sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
                               double loc, int fix_shape, int fix_scale,
                               double *shape, double *scale, sp_error *err);
@@ -131,6 +152,8 @@ sp_status sp_dist_gumbel_mle(const char *fam, const double *x, size_t n,
  * with the U^(1/a) boost for a < 1 taken in logs so tiny shapes cannot
  * underflow); beta draws its two gammas from here. */
 double sp_dist_gamma_log_variate(double a, sp_pcg64 *g);
+/* One standard Gamma(a) deviate for a >= 1 (the same method, no logs). */
+double sp_dist_gamma_variate(double a, sp_pcg64 *g);
 
 /* The families, one per file, listed in registry.c. */
 extern const sp_family sp_dist_normal;

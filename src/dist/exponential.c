@@ -61,8 +61,8 @@ static double mean(const double *t) { return 1.0 / t[RATE]; }
 static double variance(const double *t) { return 1.0 / (t[RATE] * t[RATE]); }
 
 /* Closed-form MLE: rate = 1 / mean. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   if (sp_dist_is_fixed(fixed, RATE)) return SP_OK;
   sp_dist_summary s;
@@ -78,10 +78,25 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
+{
+  return start_impl(x, n, fixed, t, err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_exponential, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
 static sp_status fit_mle(const double *x, size_t n, const int *fixed,
                          double *t, sp_error *err)
 {
-  return fit_start(x, n, fixed, t, err);
+  return sp_dist_validate_fit(&sp_dist_exponential, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_exponential = {

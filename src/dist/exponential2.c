@@ -102,8 +102,8 @@ static sp_status rate_from(const sp_dist_summary *s, double loc, double *rate,
 
 /* Start: the unbiased location min - (mean - min)/(n - 1), strictly below
  * the data, and the rate about it. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   int fr = sp_dist_is_fixed(fixed, RATE), fl = sp_dist_is_fixed(fixed, LOC);
   if (fr && fl) return SP_OK;
@@ -127,8 +127,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return rate_from(&s, t[LOC], &t[RATE], err);
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   int fr = sp_dist_is_fixed(fixed, RATE), fl = sp_dist_is_fixed(fixed, LOC);
   if (fr && fl) return SP_OK;
@@ -142,6 +142,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   }
   if (st != SP_OK || fr) return st;
   return rate_from(&s, t[LOC], &t[RATE], err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_exponential2, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_exponential2, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_exponential2 = {

@@ -11,7 +11,8 @@
  * Hilferty, M.M. (1931). The distribution of chi-square. PNAS 17(12),
  * 684-688) or, where that fails, from the leading term of the series
  * P(a, x) ~ x^a / Gamma(a + 1).  Below x = DBL_EPSILON/4 that leading term
- * is exact to rounding, so quantiles that underflow come out as 0 cleanly.
+ * is exact to rounding and is evaluated from u itself, so quantiles in or
+ * below the subnormal range come out cleanly.
  *
  * Sampler: Marsaglia, G. & Tsang, W.W. (2000). A simple method for
  * generating gamma variables. ACM Transactions on Mathematical Software
@@ -41,6 +42,9 @@ enum { SHAPE, SCALE };
 /* Maximum-likelihood tolerance on log shape (Newton is quadratic, so the
  * iterate after a 1e-12 step is accurate to rounding). */
 #define GAMMA_TOL 1e-12
+/* From this shape on, logpdf uses the saddle-point form (below, the direct
+ * form loses at most log10(a log a) ~ 1.4 digits). */
+#define GAMMA_SADDLE_A 10.0
 #define GAMMA_MAXIT 200
 
 static sp_status check(const double *t, sp_error *err)
@@ -68,6 +72,19 @@ static double logpdf(const double *t, double x)
     return -log(t[SCALE]);
   }
   double y = x / t[SCALE];
+  if (a >= GAMMA_SADDLE_A && fabs(y - a) < 0.5 * a) {
+    /* (a - 1) log y - y - lgamma(a), with lgamma(a) = (a - 1/2) log a - a +
+     * log sqrt(2 pi) + log Gamma*(a) (GSL's gammastar) and r = y/a - 1:
+     *   a log1pmx(r) - log1p(r) - log sqrt(2 pi a) - log Gamma*(a),
+     * the same value without the cancellation of terms of size a log a
+     * (which costs 1e-3 absolute at a = 1e11 in the direct form).  Used
+     * within half the mean of the mean: further out log f is itself of
+     * order a and the direct form is accurate relative to it, while 1 + r
+     * would lose digits as x goes to 0. */
+    double r = (y - a) / a;
+    return a * gsl_sf_log_1plusx_mx(r) - log1p(r) - 0.5 * log(a) -
+           SP_DIST_LN_SQRT_2PI - log(gsl_sf_gammastar(a)) - log(t[SCALE]);
+  }
   double ly = y >= DBL_MIN ? log(y) : log(x) - log(t[SCALE]);
   return (a - 1.0) * ly - y - gsl_sf_lngamma(a) - log(t[SCALE]);
 }
@@ -98,9 +115,11 @@ typedef struct {
 } qctx;
 
 /* log P(a, x) for the standard gamma, with x = exp(u).  When P underflows
- * (x far below a) the Kummer series P = x^a e^-x / Gamma(a+1) *
- * sum_k x^k / ((a+1)...(a+k)) (Abramowitz & Stegun 1964, 6.5.29) is summed
- * in logs. */
+ * (x far below a) the series
+ *   P = x^a e^-x / Gamma(a+1) * sum_k x^k / ((a+1)...(a+k))
+ * (Abramowitz, M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical
+ * Functions. National Bureau of Standards, Applied Mathematics Series 55,
+ * section 6.5) is summed in logs. */
 static double log_P(const qctx *c, double u, double x)
 {
   if (x < 0.25 * DBL_EPSILON) return c->a * u - c->lga1;
@@ -132,11 +151,20 @@ static int lower_fdf(double u, void *vc, double *f, double *df)
   return 0;
 }
 
-/* F(u) = log q - log Q(e^u), increasing; F' = x f(x) / Q. */
+/* F(u) = log q - log Q(e^u), increasing; F' = x f(x) / Q.  Below
+ * x = DBL_EPSILON/4, Q = 1 - x^a / Gamma(a + 1) to rounding, taken from u
+ * itself: exp(u) would be subnormal there for tiny shapes (whose median
+ * can be 1e-316), too coarse for Newton's method. */
 static int upper_fdf(double u, void *vc, double *f, double *df)
 {
   const qctx *c = vc;
   double x = exp(u);
+  if (x < 0.25 * DBL_EPSILON) {
+    double lp = c->a * u - c->lga1, lq = sp_dist_log1mexp(lp);
+    *f = c->ltarget - lq;
+    *df = exp(c->a * u - c->lga - lq);
+    return 0;
+  }
   double q = x == INFINITY ? 0.0 : gsl_sf_gamma_inc_Q(c->a, x);
   if (!(q > 0.0)) {
     *f = INFINITY;
@@ -167,9 +195,11 @@ static double std_quantile(double a, double target, int upper)
     if (us > u0) u0 = us;
   }
   double root;
+  /* rc = 1 (bracketed, not to full tolerance) still gives the bracket's
+   * midpoint, within rounding noise of the root. */
   int rc = sp_dist_solve_increasing(upper ? upper_fdf : lower_fdf, &c, u0,
                                     GAMMA_QTOL, GAMMA_QMAXIT, &root);
-  if (rc != 0) return NAN;
+  if (rc < 0) return NAN;
   return exp(root);
 }
 
@@ -215,6 +245,8 @@ static double mt_gamma(double a, sp_pcg64 *g)
   }
 }
 
+double sp_dist_gamma_variate(double a, sp_pcg64 *g) { return mt_gamma(a, g); }
+
 double sp_dist_gamma_log_variate(double a, sp_pcg64 *g)
 {
   if (a >= 1.0) return log(mt_gamma(a, g));
@@ -238,7 +270,7 @@ static double variance(const double *t) { return t[SHAPE] * t[SCALE] * t[SCALE];
 
 /* log a - psi(a) and its derivative 1/a - psi'(a).  For a >= 10 the
  * difference cancels, so the asymptotic series is used (Abramowitz & Stegun
- * 1964, 6.3.18 and 6.4.12, with the Bernoulli numbers B2..B14):
+ * 1964, sections 6.3 and 6.4, with the Bernoulli numbers B2..B14):
  *   log a - psi(a) = 1/(2a) + 1/(12a^2) - 1/(120a^4) + 1/(252a^6)
  *                    - 1/(240a^8) + 1/(132a^10) - 691/(32760a^12) + 1/(12a^14);
  * at a = 10 the first omitted term is below 1e-15 of the sum. */
@@ -294,8 +326,8 @@ static sp_status need_gamma_data(const double *x, size_t n, sp_dist_summary *s,
 
 /* Method of moments: shape = mean^2 / var, scale = var / mean (var with the
  * n denominator); with one fixed, the other from the mean. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_status st = need_gamma_data(x, n, &s, err);
@@ -316,8 +348,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   int fa = sp_dist_is_fixed(fixed, SHAPE), fs = sp_dist_is_fixed(fixed, SCALE);
   if (fa && fs) return SP_OK;
@@ -343,19 +375,26 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   } else {
     st = sp_dist_need_spread("gamma", &s, err);
     if (st != SP_OK) return st;
-    /* s = log(mean) - mean(log x) = mean(d - log1p(d)) - mean(d) with
-     * d = (x - mean)/mean: the first sum has positive terms (no
-     * cancellation; GSL's log_1plusx_mx keeps small d exact) and the second
-     * only corrects the rounding of the mean.  Direct log(mean) -
+    /* With m the computed mean, d = x/m - 1 and md = mean(d) (zero up to
+     * the rounding of m):
+     *   s = log(mean) - mean(log x) = log1p(md) - mean(log1p(d))
+     *     = mean(d - log1p(d)) - (md - log1p(md)),
+     * whose first sum has positive terms ~d^2/2 (GSL's log_1plusx_mx keeps
+     * small d exact) and whose second is of order md^2.  Direct log(mean) -
      * mean(log x) would lose digits when the spread is small (large a). */
     double s1 = 0.0, s2 = 0.0;
     for (size_t i = 0; i < n; i++) {
       double d = (x[i] - s.mean) / s.mean;
-      s1 -= gsl_sf_log_1plusx_mx(d);
+      /* Far from the mean, d - log1p(d) has no cancellation, and d itself
+       * may round to -1 for x << mean: log of the ratio instead. */
+      if (fabs(d) < 0.5)
+        s1 -= gsl_sf_log_1plusx_mx(d);
+      else
+        s1 += d - log(x[i] / s.mean);
       s2 += d;
     }
-    c.s = (s1 - s2) / (double)n;
-    if (!(c.s > 0.0)) return sp_dist_need_spread("gamma", &s, err);
+    c.s = s1 / (double)n + gsl_sf_log_1plusx_mx(s2 / (double)n);
+    if (!(c.s > 0.0) || !isfinite(c.s)) return sp_dist_spread_failure("gamma", &s, err);
     double a0 = (3.0 - c.s + sqrt((c.s - 3.0) * (c.s - 3.0) + 24.0 * c.s)) /
                 (12.0 * c.s);
     rc = sp_dist_solve_increasing(shape_fdf, &c, log(a0), GAMMA_TOL,
@@ -368,6 +407,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   t[SHAPE] = exp(root);
   if (!fs) t[SCALE] = s.mean / t[SHAPE];
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gamma, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gamma, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_gamma = {

@@ -21,6 +21,9 @@
 
 enum { LOC, SCALE };
 
+/* Tolerance on log scale: Newton is quadratic, so the iterate after a step
+ * below 1e-12 is accurate to rounding; the cap is far beyond what the
+ * bracketing (halving at worst) needs over the double range. */
 #define GUMBEL_TOL 1e-12
 #define GUMBEL_MAXIT 200
 
@@ -177,8 +180,8 @@ sp_status sp_dist_gumbel_mle(const char *fam, const double *x, size_t n,
 
 /* Starting values from the moments: scale = sd sqrt(6)/pi,
  * location = mean - gamma scale. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -193,12 +196,27 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   return sp_dist_gumbel_mle("gumbel_max", x, n, 1.0, sp_dist_is_fixed(fixed, LOC),
                             sp_dist_is_fixed(fixed, SCALE), &t[LOC], &t[SCALE],
                             err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gumbel_max, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gumbel_max, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_gumbel_max = {

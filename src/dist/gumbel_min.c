@@ -67,8 +67,8 @@ static double variance(const double *t)
 
 /* Starting values from the moments: scale = sd sqrt(6)/pi,
  * location = mean + gamma scale. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -83,12 +83,27 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   return sp_dist_gumbel_mle("gumbel_min", x, n, -1.0, sp_dist_is_fixed(fixed, LOC),
                             sp_dist_is_fixed(fixed, SCALE), &t[LOC], &t[SCALE],
                             err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gumbel_min, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_gumbel_min, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_gumbel_min = {

@@ -62,8 +62,8 @@ static double variance(const double *t)
 }
 
 /* Starting values from the moments: location = mean, scale = sd sqrt(3)/pi. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -76,6 +76,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     t[SCALE] = sqrt(s.m2 / (double)n) * sqrt(3.0) / SP_DIST_PI;
   }
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_logistic, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_logistic = {

@@ -79,8 +79,8 @@ static double variance(const double *t)
 
 /* The normal MLE on log x, which is also the lognormal MLE (closed form);
  * sdlog uses the n denominator. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -93,17 +93,32 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   if (!sp_dist_is_fixed(fixed, SDLOG)) {
     double d = ml - t[MEANLOG];
     double sd = sqrt((m2 + (double)n * d * d) / (double)n);
-    if (!(sd > 0.0)) return sp_dist_need_spread("lognormal", &s, err);
+    if (!(sd > 0.0) || !isfinite(sd)) return sp_dist_spread_failure("lognormal", &s, err);
     t[SDLOG] = sd;
   }
   return SP_OK;
 }
 
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
+{
+  if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
+  return start_impl(x, n, fixed, t, err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_lognormal, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
 static sp_status fit_mle(const double *x, size_t n, const int *fixed,
                          double *t, sp_error *err)
 {
-  if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
-  return fit_start(x, n, fixed, t, err);
+  return sp_dist_validate_fit(&sp_dist_lognormal, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_lognormal = {

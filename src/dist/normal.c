@@ -65,8 +65,8 @@ static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 static double mean(const double *t) { return t[MEAN]; }
 static double variance(const double *t) { return t[SD] * t[SD]; }
 
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -77,8 +77,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     /* Root mean square about the (possibly fixed) mean. */
     double d = s.mean - t[MEAN];
     double sd = sqrt((s.m2 + (double)n * d * d) / (double)n);
-    if (!(sd > 0.0))
-      return sp_dist_need_spread("normal", &s, err);
+    if (!(sd > 0.0) || !isfinite(sd))
+      return sp_dist_spread_failure("normal", &s, err);
     t[SD] = sd;
   }
   return SP_OK;
@@ -86,11 +86,26 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
 
 /* Closed form: mean = xbar, sd = sqrt(sum (x - mean)^2 / n) (the MLE, with
  * the n denominator), about the fixed mean if mean is fixed. */
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
+{
+  if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
+  return start_impl(x, n, fixed, t, err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_normal, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
 static sp_status fit_mle(const double *x, size_t n, const int *fixed,
                          double *t, sp_error *err)
 {
-  if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
-  return fit_start(x, n, fixed, t, err);
+  return sp_dist_validate_fit(&sp_dist_normal, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_normal = {

@@ -51,7 +51,10 @@ static double log_P(double z) { return log_Q(-z); }
 /* log(Phi(a + w) - Phi(a)) for a narrow interval, from the Taylor series
  *   Phi(a + w) - Phi(a) = phi(a) sum_{k>=1} (-1)^(k-1) He_{k-1}(a) w^k / k!
  * (phi^(k)(a) = (-1)^k He_k(a) phi(a), with the probabilists' Hermite
- * polynomials He_k, Abramowitz & Stegun 1964, 22.8.8 and 22.7.14), used
+ * polynomials He_k and their recurrence He_(k+1) = a He_k - k He_(k-1):
+ * Abramowitz, M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical
+ * Functions. National Bureau of Standards, Applied Mathematics Series 55,
+ * chapter 22), used
  * where w (|a| + |a + w| + 1) <= SERIES_MAX.  There the difference of two
  * tails would cancel (it loses log10(|log Q| / (w h)) digits), while the
  * terms of the series shrink at least geometrically and its sum stays
@@ -189,18 +192,30 @@ static double core_zQ(const tn *c, double q)
   return -z_from_log_Q(sp_dist_logaddexp(c->lPa, log1p(-q) + c->logZ));
 }
 
-/* For a narrow interval (the series regime): the standardised distance
- * d in [0, w] from the limit a (lower limit; or -b, for mass below the upper
- * limit, by symmetry) holding mass target * Z, by Newton's method on
- * log D(a, d) - log(target Z), D(a, d) = Phi(a + d) - Phi(a).  D is nearly
- * linear there (phi varies by at most e^(1/2) over the interval), so the
- * start d = target w is close and a few steps reach rounding level; the
- * quantile is then formed as limit +- sd d, keeping its digits relative to
- * the width of the interval. */
-static double narrow_distance(const tn *c, double a, double target)
+/* Near a finite limit (the whole of a narrow interval, or the part of any
+ * interval next to a finite limit that holds the target mass): the
+ * standardised distance d in [0, w] from the limit a (the lower limit; or
+ * -b, for mass below the upper limit b, by symmetry) holding mass
+ * target * Z, by Newton's method on log D(a, d) - log(target Z) with
+ * D(a, d) = Phi(a + d) - Phi(a) from the series.  D is nearly linear there
+ * (phi varies by at most e^(1/2)), so the start d0 = target Z / phi(a) is
+ * close and a few steps reach rounding level; the quantile is then formed
+ * as limit +- sd d, keeping its digits relative to its distance from the
+ * limit.  (Forming the tail target from log Q instead would round it on
+ * the scale of Q(a), up to 1/2 when the limit is near the mean.) */
+static double limit_start(const tn *c, double a, double target)
+{
+  return exp(log(target) + c->logZ + 0.5 * a * a + SP_DIST_LN_SQRT_2PI);
+}
+
+static int in_series(double a, double d)
+{
+  return d * (2.0 * fabs(a) + d + 1.0) <= 0.5 * SERIES_MAX;
+}
+
+static double limit_distance(const tn *c, double a, double target, double d)
 {
   double lt = log(target) + c->logZ;
-  double d = target * c->w;
   for (int i = 0; i < 50 && d > 0.0; i++) {
     double ld = log_diff_series(a, d);
     double z = a + d;
@@ -215,14 +230,17 @@ static double narrow_distance(const tn *c, double a, double target)
   return d;
 }
 
-static double narrow_quantile(const tn *c, double mass, int from_upper)
+/* The quantile with mass (<= 1/2) above the lower limit (from_upper = 0)
+ * or below the upper limit (from_upper = 1), if it lies in the series
+ * regime of that limit; NAN otherwise. */
+static double near_limit_quantile(const tn *c, double mass, int from_upper)
 {
-  if (mass > 0.5) {
-    mass = 1.0 - mass;
-    from_upper = !from_upper;
-  }
-  if (from_upper) return c->hi - c->sd * narrow_distance(c, -c->b0, mass);
-  return c->lo + c->sd * narrow_distance(c, c->a0, mass);
+  double a = from_upper ? -c->b0 : c->a0;
+  if (!isfinite(a)) return NAN;
+  double d0 = c->narrow ? mass * c->w : limit_start(c, a, mass);
+  if (!c->narrow && !in_series(a, d0)) return NAN;
+  double d = limit_distance(c, a, mass, d0);
+  return from_upper ? c->hi - c->sd * d : c->lo + c->sd * d;
 }
 
 static double clamp(const tn *c, double x)
@@ -235,7 +253,10 @@ static double clamp(const tn *c, double x)
 static double quantile_P_c(const tn *c, double p)
 {
   if (!(p >= 0.0 && p <= 1.0)) return NAN;
-  if (c->narrow && p > 0.0 && p < 1.0) return clamp(c, narrow_quantile(c, p, 0));
+  if (p > 0.0 && p < 1.0) {
+    double x = p <= 0.5 ? near_limit_quantile(c, p, 0) : near_limit_quantile(c, 1.0 - p, 1);
+    if (!isnan(x)) return clamp(c, x);
+  }
   if (c->mirror) return clamp(c, c->mu - c->sd * core_zQ(c, p));
   return clamp(c, c->mu + c->sd * core_zP(c, p));
 }
@@ -243,7 +264,10 @@ static double quantile_P_c(const tn *c, double p)
 static double quantile_Q_c(const tn *c, double q)
 {
   if (!(q >= 0.0 && q <= 1.0)) return NAN;
-  if (c->narrow && q > 0.0 && q < 1.0) return clamp(c, narrow_quantile(c, q, 1));
+  if (q > 0.0 && q < 1.0) {
+    double x = q <= 0.5 ? near_limit_quantile(c, q, 1) : near_limit_quantile(c, 1.0 - q, 0);
+    if (!isnan(x)) return clamp(c, x);
+  }
   if (c->mirror) return clamp(c, c->mu - c->sd * core_zP(c, q));
   return clamp(c, c->mu + c->sd * core_zQ(c, q));
 }
@@ -279,14 +303,17 @@ static void support(const double *t, double *lo, double *hi)
   *hi = t[UPPER];
 }
 
+/* Only log Z is needed here (two tail evaluations, not setup's five): the
+ * log-likelihood calls this once per value. */
 static double logpdf(const double *t, double x)
 {
   if (isnan(x)) return NAN;
   if (x < t[LOWER] || x > t[UPPER]) return -INFINITY;
-  tn c;
-  setup(t, &c);
+  double a = (t[LOWER] - t[MEAN]) / t[SD], b = (t[UPPER] - t[MEAN]) / t[SD];
+  double logZ = b <= 0.0 ? log_diff(-b, -a, (t[UPPER] - t[LOWER]) / t[SD])
+                         : log_diff(a, b, (t[UPPER] - t[LOWER]) / t[SD]);
   double z = (x - t[MEAN]) / t[SD];
-  return -0.5 * z * z - log(t[SD]) - SP_DIST_LN_SQRT_2PI - c.logZ;
+  return -0.5 * z * z - log(t[SD]) - SP_DIST_LN_SQRT_2PI - logZ;
 }
 
 static double cdf_P(const double *t, double x)
@@ -354,7 +381,7 @@ static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
  * s = T - a are computed instead from the continued fraction of Laplace
  * for the Mills ratio R(a) = Q(a)/phi(a) = 1/T0,
  *   Tk = a + (k + 1)/T(k+1),  k = 0, 1, 2, ...
- * (Abramowitz & Stegun 1964, 26.2.14), evaluated backward from depth
+ * (Abramowitz & Stegun 1964, section 26.2), evaluated backward from depth
  * CF_DEPTH: with h = phi(a)/Q(a) = T0, rho = Q(b)/Q(a) = E R(b)/R(a) and
  * E = phi(b)/phi(a) = exp(-w (a + b)/2),
  *   E[s]   = (1/T1 - h E + a rho) / (1 - rho),
@@ -484,8 +511,8 @@ static double variance(const double *t)
 /* Starting values: the limits must be given (a limit that is not flagged
  * fixed takes its default, -inf or +inf); mean and sd from the sample
  * moments, which a general minimiser then corrects for the truncation. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   if (!sp_dist_is_fixed(fixed, LOWER)) t[LOWER] = -INFINITY;
   if (!sp_dist_is_fixed(fixed, UPPER)) t[UPPER] = INFINITY;
@@ -509,6 +536,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     t[SD] = sqrt(s.m2 / (double)n);
   }
   return SP_OK;
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_truncnormal, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_truncnormal = {

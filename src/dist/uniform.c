@@ -109,8 +109,8 @@ static sp_status need_width(const double *t, const sp_dist_summary *s,
  * min - w/(n - 1), max + w/(n - 1) with w = max(x) - min(x) (the expected
  * gap beyond each extreme is (max - min)/(n + 1)); with one end fixed at c,
  * the other is c +- (n + 1)/n times the range from c. */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   int fa = sp_dist_is_fixed(fixed, MIN), fb = sp_dist_is_fixed(fixed, MAX);
   if (fa && fb) return SP_OK;
@@ -132,8 +132,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return need_width(t, &s, err);
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   int fa = sp_dist_is_fixed(fixed, MIN), fb = sp_dist_is_fixed(fixed, MAX);
   if (fa && fb) return SP_OK;
@@ -143,6 +143,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   if (!fa) t[MIN] = s.min;
   if (!fb) t[MAX] = s.max;
   return need_width(t, &s, err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_uniform, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_uniform, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_uniform = {

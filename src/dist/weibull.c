@@ -13,8 +13,10 @@
  * on log k by safeguarded Newton (sp_dist_solve_increasing) with the data
  * divided by their maximum, so x^k lies in (0, 1] and cannot overflow for
  * data spanning many orders of magnitude.  Each iteration is one pass over
- * precomputed logs; the start k0 = pi / (sd(log x) sqrt 6) matches the
- * variance of log X, which is pi^2 / (6 k^2) (log X is Gumbel-min). */
+ * the logs of the data, computed once; the start k0 = pi / (sd(log x)
+ * sqrt 6) matches the variance of log X, which is pi^2 / (6 k^2) (log X is
+ * Gumbel-min), and is typically within a few 1/sqrt(n) of the root for
+ * large samples, so two or three passes do. */
 #include <float.h>
 #include <math.h>
 #include <stdint.h>
@@ -119,7 +121,9 @@ static double mean(const double *t)
 /* D(h) = lgamma(1 + 2h) - 2 lgamma(1 + h) >= 0 for h = 1/k.  For small h
  * the two terms nearly cancel (variance ~ pi^2/(6k^2)), so D comes from the
  * Taylor series of lgamma(1 + x) = -gamma x + sum_{j>=2} (-1)^j zeta(j) x^j / j
- * (Abramowitz & Stegun 1964, 6.1.33), in which the linear terms cancel
+ * (Abramowitz, M. & Stegun, I.A. (eds.) (1964). Handbook of Mathematical
+ * Functions. National Bureau of Standards, Applied Mathematics Series 55,
+ * section 6.1), in which the linear terms cancel
  * exactly:  D(h) = sum_{j>=2} (-1)^j zeta(j) (2^j - 2) h^j / j.
  * For h <= 1/8 the terms shrink by at least 1/4 each (radius 1/2), so 30
  * terms reach below DBL_EPSILON; for larger h the direct difference loses
@@ -151,22 +155,36 @@ static double variance(const double *t)
 
 /* ---- maximum likelihood ------------------------------------------------ */
 
+/* The logs y = log(x - loc) - c (c = log of the largest x - loc, so y <= 0)
+ * are computed once into a buffer of n doubles; a log costs as much as the
+ * exp each pass needs, so this halves the cost of every pass.  Should the
+ * buffer not be available, they are recomputed in each pass instead. */
 typedef struct {
-  const double *y; /* log(x - loc) - c, all <= 0 */
+  const double *x;
+  const double *ybuf; /* the y values, or NULL */
   size_t n;
-  double ybar;     /* mean of y */
-  double vmax;     /* for fixed scale: max of v = y + c - log scale */
-  double shift;    /* for fixed scale: c - log scale */
+  double loc;
+  double c;       /* log(max(x) - loc) */
+  double ybar;    /* mean of y */
+  double shift;   /* for fixed scale: c - log scale, so v = y + shift */
+  /* The last evaluation of the both-free profile: k, sum w, sum w y / sum w,
+   * for the scale at the root without another pass. */
+  double k_last, s0_last, a_last;
 } wctx;
+
+static double wy(const wctx *c, size_t i)
+{
+  return c->ybuf ? c->ybuf[i] : log(c->x[i] - c->loc) - c->c;
+}
 
 /* The profile equation on s = log k, with weights w = exp(k y) in (0, 1]. */
 static int profile_fdf(double s, void *vc, double *f, double *df)
 {
-  const wctx *c = vc;
+  wctx *c = vc;
   double k = exp(s);
   double s0 = 0.0, s1 = 0.0, s2 = 0.0;
   for (size_t i = 0; i < c->n; i++) {
-    double y = c->y[i];
+    double y = wy(c, i);
     double w = exp(k * y);
     s0 += w;
     s1 += w * y;
@@ -177,33 +195,42 @@ static int profile_fdf(double s, void *vc, double *f, double *df)
   if (v < 0.0) v = 0.0;
   *f = a - 1.0 / k - c->ybar;
   *df = k * v + 1.0 / k;
+  c->k_last = k;
+  c->s0_last = s0;
+  c->a_last = a;
   return 0;
 }
 
 /* With the scale fixed, the shape solves
  *   mean(exp(k v) v) - 1/k - mean(v) = 0,  v = log(x / scale),
  * whose left side increases in k; the weights are taken relative to the
- * largest v so they stay in (0, 1]. */
+ * largest v (= shift, where y = 0) so they stay in (0, 1]. */
 static int fixed_scale_fdf(double s, void *vc, double *f, double *df)
 {
   const wctx *c = vc;
   double k = exp(s);
-  double t0 = 0.0, t1 = 0.0, t2 = 0.0;
+  double t1 = 0.0, t2 = 0.0;
   for (size_t i = 0; i < c->n; i++) {
-    double v = c->y[i] + c->shift;
-    double w = exp(k * (v - c->vmax));
-    t0 += w;
+    double y = wy(c, i), v = y + c->shift;
+    double w = exp(k * y);
     t1 += w * v;
     t2 += w * v * v;
   }
   double nn = (double)c->n;
-  double e = exp(k * c->vmax);
-  double vbar = c->ybar + c->shift;
+  double e = exp(k * c->shift);
   double m1 = e * (t1 / nn), m2 = e * (t2 / nn);
   if (isnan(m1)) return -1;
-  *f = m1 - 1.0 / k - vbar;
+  *f = m1 - 1.0 / k - (c->ybar + c->shift);
   *df = k * m2 + 1.0 / k;
   return 0;
+}
+
+/* log(mean exp(k y)), one pass. */
+static double log_mean_power(const wctx *c, double k)
+{
+  double s0 = 0.0;
+  for (size_t i = 0; i < c->n; i++) s0 += exp(k * wy(c, i));
+  return log(s0 / (double)c->n);
 }
 
 sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
@@ -212,34 +239,42 @@ sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
 {
   if (fix_shape && fix_scale) return SP_OK;
   if (n == 0) return sp_fail(err, SP_EDATA, "%s needs at least 1 value", fam);
-  if (n > SIZE_MAX / sizeof(double))
-    return sp_fail(err, SP_ENOMEM, "%s: %zu values are too many", fam, n);
-  double *y = malloc(n * sizeof *y);
-  if (!y) return sp_fail(err, SP_ENOMEM, "%s: out of memory for %zu values", fam, n);
+  double xmax = x[0];
+  for (size_t i = 1; i < n; i++)
+    if (x[i] > xmax) xmax = x[i];
+  double *ybuf = n <= SIZE_MAX / sizeof(double) ? malloc(n * sizeof *ybuf) : NULL;
+  wctx ctx = {x, NULL, n, loc, log(xmax - loc), 0.0, 0.0, NAN, NAN, NAN};
+  /* Mean and sum of squared deviations of y: two passes over the buffer,
+   * or, without it, one pass of sums shifted by the first y (the shift
+   * keeps the cancellation small; m2 only seeds the iteration). */
+  double sum = 0.0, m2 = 0.0;
+  if (ybuf) {
+    for (size_t i = 0; i < n; i++) {
+      ybuf[i] = wy(&ctx, i);
+      sum += ybuf[i];
+    }
+    ctx.ybuf = ybuf;
+    ctx.ybar = sum / (double)n;
+    for (size_t i = 0; i < n; i++) m2 += (ybuf[i] - ctx.ybar) * (ybuf[i] - ctx.ybar);
+  } else {
+    double y0 = wy(&ctx, 0), d1 = 0.0, d2 = 0.0;
+    for (size_t i = 0; i < n; i++) {
+      double d = wy(&ctx, i) - y0;
+      d1 += d;
+      d2 += d * d;
+    }
+    ctx.ybar = y0 + d1 / (double)n;
+    m2 = d2 - d1 * d1 / (double)n;
+  }
 
-  double c = -INFINITY;
-  for (size_t i = 0; i < n; i++) {
-    y[i] = log(x[i] - loc);
-    if (y[i] > c) c = y[i];
-  }
-  double sum = 0.0;
-  for (size_t i = 0; i < n; i++) {
-    y[i] -= c;
-    sum += y[i];
-  }
-  double ybar = sum / (double)n;
-  double m2 = 0.0;
-  for (size_t i = 0; i < n; i++) m2 += (y[i] - ybar) * (y[i] - ybar);
-  wctx ctx = {y, n, ybar, 0.0, 0.0};
   sp_status st = SP_OK;
-
-  if (!fix_shape && !(m2 > 0.0)) {
-    st = sp_fail(err, SP_EDATA,
-                 "%s: all %zu values are equal (%g), so the shape cannot be "
-                 "estimated", fam, n, x[0]);
-    goto done;
-  }
   if (!fix_shape) {
+    if (!(m2 > 0.0)) {
+      st = sp_fail(err, SP_EDATA,
+                   "%s: all %zu values are equal (%g), so the shape cannot be "
+                   "estimated", fam, n, x[0]);
+      goto done;
+    }
     double sdlog = sqrt(m2 / (double)n);
     double k0 = SP_DIST_PI / (sdlog * sqrt(6.0));
     double root;
@@ -248,8 +283,7 @@ sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
       rc = sp_dist_solve_increasing(profile_fdf, &ctx, log(k0), WEIBULL_TOL,
                                     WEIBULL_MAXIT, &root);
     } else {
-      ctx.shift = c - log(*scale);
-      ctx.vmax = ctx.shift; /* max of y is 0 */
+      ctx.shift = ctx.c - log(*scale);
       rc = sp_dist_solve_increasing(fixed_scale_fdf, &ctx, log(k0), WEIBULL_TOL,
                                     WEIBULL_MAXIT, &root);
     }
@@ -262,30 +296,34 @@ sp_status sp_dist_weibull_mle(const char *fam, const double *x, size_t n,
     *shape = exp(root);
   }
   if (!fix_scale) {
-    /* Closed form for the given shape: scale = (mean (x - loc)^k)^(1/k). */
-    double k = *shape, s0 = 0.0;
-    for (size_t i = 0; i < n; i++) s0 += exp(k * y[i]);
-    *scale = exp(c + log(s0 / (double)n) / k);
+    /* Closed form for the given shape: scale = (mean (x - loc)^k)^(1/k).
+     * After the profile iteration, the sums at the last evaluated k_last
+     * (within WEIBULL_TOL of the root) give log mean exp(k y) at the root to
+     * first order, d/dk log sum w = sum w y / sum w, with an error of order
+     * (k - k_last)^2, far below rounding; otherwise one more pass. */
+    double k = *shape, lm;
+    double dk = k - ctx.k_last;
+    if (!fix_shape && fabs(dk) <= 1e-6 * k)
+      lm = log(ctx.s0_last / (double)n) + dk * ctx.a_last;
+    else
+      lm = log_mean_power(&ctx, k);
+    *scale = exp(ctx.c + lm / k);
   }
 done:
-  free(y);
+  free(ybuf);
   return st;
 }
 
 static sp_status need_weibull_data(const double *x, size_t n, sp_error *err)
 {
-  sp_dist_summary s;
-  sp_dist_summarise(x, n, &s);
-  sp_status st = sp_dist_need_data("weibull", &s, 1, err);
-  if (st == SP_OK) st = sp_dist_need_positive("weibull", &s, err);
-  return st;
+  return sp_dist_scan_positive("weibull", x, n, err);
 }
 
 /* Starting values from the moments of log x (log X is Gumbel-min with scale
  * 1/k and location log scale): k = pi / (sd(log x) sqrt 6),
  * scale = exp(mean(log x) + gamma/k). */
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_status st = need_weibull_data(x, n, err);
   if (st != SP_OK) return st;
@@ -295,7 +333,7 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
     if (!(m2 > 0.0)) {
       sp_dist_summary s;
       sp_dist_summarise(x, n, &s);
-      return sp_dist_need_spread("weibull", &s, err);
+      return sp_dist_spread_failure("weibull", &s, err);
     }
     t[SHAPE] = SP_DIST_PI / (sqrt(m2 / (double)n) * sqrt(6.0));
   }
@@ -308,8 +346,8 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   return SP_OK;
 }
 
-static sp_status fit_mle(const double *x, size_t n, const int *fixed,
-                         double *t, sp_error *err)
+static sp_status mle_impl(const double *x, size_t n, const int *fixed,
+                          double *t, sp_error *err)
 {
   if (sp_dist_all_fixed(fixed, 2)) return SP_OK;
   sp_status st = need_weibull_data(x, n, err);
@@ -317,6 +355,21 @@ static sp_status fit_mle(const double *x, size_t n, const int *fixed,
   return sp_dist_weibull_mle("weibull", x, n, 0.0, sp_dist_is_fixed(fixed, SHAPE),
                              sp_dist_is_fixed(fixed, SCALE), &t[SHAPE],
                              &t[SCALE], err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_weibull, start_impl(x, n, fixed, t, err), t,
+                              err);
+}
+
+static sp_status fit_mle(const double *x, size_t n, const int *fixed,
+                         double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_weibull, mle_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_weibull = {

@@ -73,14 +73,14 @@ static double skewness(double k)
 }
 
 /* The shape range searched for the moment start: skewness decreases from
- * 6.6 at k = 0.5 to -0.9 near k = 30, beyond which the Gamma-function
+ * 6.6 at k = 0.5 to -0.95 at k = 30, beyond which the Gamma-function
  * differences above lose their digits; the maximum likelihood refines the
  * start anyway. */
 #define W3_KMIN 0.5
 #define W3_KMAX 30.0
 
-static sp_status fit_start(const double *x, size_t n, const int *fixed,
-                           double *t, sp_error *err)
+static sp_status start_impl(const double *x, size_t n, const int *fixed,
+                            double *t, sp_error *err)
 {
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
@@ -128,6 +128,14 @@ static sp_status fit_start(const double *x, size_t n, const int *fixed,
   if (fs && fc) return SP_OK;
   return sp_dist_weibull_mle("weibull3", x, n, t[LOC], fs, fc, &t[SHAPE],
                              &t[SCALE], err);
+}
+
+/* Every result passes check() (sp_dist_validate_fit). */
+static sp_status fit_start(const double *x, size_t n, const int *fixed,
+                           double *t, sp_error *err)
+{
+  return sp_dist_validate_fit(&sp_dist_weibull3, start_impl(x, n, fixed, t, err), t,
+                              err);
 }
 
 const sp_family sp_dist_weibull3 = {
