@@ -47,6 +47,8 @@ void cli_print_caution(FILE *out);
 /* Commands (one file each under src/cli/). */
 int cli_summary_run(int argc, char **argv);
 void cli_summary_help(FILE *out);
+int cli_propagate_run(int argc, char **argv);
+void cli_propagate_help(FILE *out);
 int cli_fit_run(int argc, char **argv);
 void cli_fit_help(FILE *out);
 

@@ -12,6 +12,8 @@ static const cli_command commands[] = {
    cli_summary_run, cli_summary_help},
   {"fit", "fit distribution families to a column, rank them, write a fit record",
    cli_fit_run, cli_fit_help},
+  {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
+   cli_propagate_run, cli_propagate_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
