@@ -493,7 +493,7 @@ static sp_status write_table(const char *dir, const char *name, const char *kind
   if (strcmp(kind, "percentiles") == 0) {
     fprintf(fp, "percent,%s [%s]\n", name, unit);
     for (size_t k = 0; k < res->npct; k++)
-      fprintf(fp, "%.17g,%.17g\n", 100.0 * res->pct_p[k], res->pct[j * res->npct + k]);
+      fprintf(fp, "%.12g,%.17g\n", 100.0 * res->pct_p[k], res->pct[j * res->npct + k]);
   } else if (strcmp(kind, "histogram") == 0) {
     const sp_engine_output *o = &res->out[j];
     fprintf(fp, "bin_lo [%s],bin_hi [%s],count\n", unit, unit);

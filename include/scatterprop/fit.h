@@ -90,7 +90,7 @@ typedef struct {
 
 typedef struct {
   /* Candidate family names (borrowed), or NULL for every registered family
-   * flagged SP_FAMILY_FIT, in registry order. */
+   * flagged SP_FAMILY_FIT and SP_FAMILY_CANDIDATE, in registry order. */
   const char *const *families;
   size_t nfamilies;
   sp_fit_fixed fixed[SP_FIT_MAX_FIXED];
