@@ -12,6 +12,7 @@
 
 #include "cli.h"
 #include "scatterprop/run.h"
+#include "scatterprop/runplot.h"
 
 void cli_propagate_help(FILE *out)
 {
@@ -19,7 +20,7 @@ void cli_propagate_help(FILE *out)
           "Usage: scatterprop propagate MODEL.spm [--samples N | --tolerance DIGITS]\n"
           "         [--method mc|lhs|sobol] [--seed S] [--threads K] [--out DIR] [--force]\n"
           "         [--json] [--keep-samples] [--sobol N] [--percentiles LIST]\n"
-          "         [--coverage P] [--bins N] [--dump-bytecode]\n"
+          "         [--coverage P] [--bins N] [--plots DIR] [--dump-bytecode]\n"
           "\n"
           "Propagates the model's inputs (fitted records or stated distributions) through\n"
           "its formulas, and prints for every output: mean with its Monte Carlo standard\n"
@@ -45,6 +46,9 @@ void cli_propagate_help(FILE *out)
           "  --percentiles LIST extra percentiles, comma-separated (e.g. 0.01,99.99)\n"
           "  --coverage P       coverage probability of the intervals (default 0.95)\n"
           "  --bins N           histogram bins (default 50)\n"
+          "  --plots DIR        draw every output's charts into DIR with gnuplot: histogram,\n"
+          "                     exceedance, sensitivity, convergence, scatter against the\n"
+          "                     most influential input (keeps the samples in memory)\n"
           "  --dump-bytecode    print the compiled model and stop\n"
           "  --help             show this help\n"
           "\n"
@@ -216,6 +220,53 @@ static void print_limits(FILE *out, const sp_run *run)
   }
 }
 
+/* The templates of a program run from its build folder inside the source
+ * tree: <folder of the program>/../plots (the library searches
+ * $SCATTERPROP_PLOTS and the installed share/scatterprop/plots first). */
+static const char *build_tree_plots(char *buf, size_t n)
+{
+  char exe[4096];
+  ssize_t len = readlink("/proc/self/exe", exe, sizeof exe - 1);
+  if (len <= 0) return NULL;
+  exe[len] = '\0';
+  char *slash = strrchr(exe, '/');
+  if (!slash) return NULL;
+  *slash = '\0';
+  int w = snprintf(buf, n, "%s/../plots", exe);
+  return w > 0 && (size_t)w < n ? buf : NULL;
+}
+
+/* Draws the run's charts into dir. */
+static int draw_plots(const sp_run *run, const char *dir, int force, sp_runplot_set *set)
+{
+  sp_error err;
+  sp_error_clear(&err);
+  char fallback[4096];
+  sp_runplot_options po;
+  sp_runplot_options_init(&po);
+  po.plot.outdir = dir;
+  po.plot.overwrite = force;
+  po.plot.template_dir = build_tree_plots(fallback, sizeof fallback);
+  return sp_runplot_draw(run, &po, set, &err) == SP_OK ? CLI_OK : cli_report(&err);
+}
+
+/* Says where the charts are, and the hint when gnuplot was not found. */
+static void print_plots(FILE *out, const sp_runplot_set *set, const char *dir)
+{
+  fprintf(out, "\ncharts: %zu drawn into %s/ (%zu rendered to PNG and SVG)\n", set->ndrawn,
+          dir, set->nrendered);
+  int hinted = 0;
+  for (size_t k = 0; k < set->ncharts; k++) {
+    const sp_runplot_chart *c = &set->charts[k];
+    if (c->drawn && !c->out.rendered && !hinted) {
+      fprintf(out, "  %s\n", c->note);
+      hinted = 1;
+    } else if (!c->drawn && c->kind != SP_RUNPLOT_SOBOL) {
+      fprintf(out, "  %s\n", c->note);
+    }
+  }
+}
+
 static int mkdir_p(const char *dir, sp_error *err)
 {
   struct stat st;
@@ -233,7 +284,7 @@ static int mkdir_p(const char *dir, sp_error *err)
 
 int cli_propagate_run(int argc, char **argv)
 {
-  const char *model = NULL, *outdir = NULL;
+  const char *model = NULL, *outdir = NULL, *plotdir = NULL;
   int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0;
   double *pcts = NULL;
   size_t npcts = 0;
@@ -289,6 +340,8 @@ int cli_propagate_run(int argc, char **argv)
         if (u < 1 || u > 100000) rc = cli_usage("propagate", "--bins takes 1 to 100000");
         ro.engine.hist_bins = (size_t)u;
       }
+    } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--plots", &v, &rc)) != 0) {
+      if (m > 0) plotdir = v;
     } else if (cli_opt_flag(argv, i, "--json")) {
       json = 1;
     } else if (cli_opt_flag(argv, i, "--force")) {
@@ -313,6 +366,7 @@ int cli_propagate_run(int argc, char **argv)
   if (rc != CLI_OK) { free(pcts); return rc; }
   ro.engine.percentiles = pcts;
   ro.engine.npercentiles = npcts;
+  if (plotdir) ro.engine.keep_samples = 1; /* the charts need every sample */
 
   sp_error err;
   sp_error_clear(&err);
@@ -346,7 +400,7 @@ int cli_propagate_run(int argc, char **argv)
     free(pcts);
     return rc;
   }
-  if (outdir && !mkdir_p(outdir, &err)) {
+  if ((outdir && !mkdir_p(outdir, &err)) || (plotdir && !mkdir_p(plotdir, &err))) {
     rc = cli_report(&err);
     sp_run_free(run);
     free(pcts);
@@ -386,9 +440,13 @@ int cli_propagate_run(int argc, char **argv)
         sp_file_write_atomic(path, record, strlen(record), force, &err) != SP_OK)
       rc = cli_report(&err);
   }
+  sp_runplot_set plots;
+  memset(&plots, 0, sizeof plots);
+  if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
+      if (plotdir) print_plots(stderr, &plots, plotdir);
     } else {
       const sp_engine_result *res = sp_run_result(run);
       const sp_model *m = sp_run_model(run);
@@ -415,11 +473,13 @@ int cli_propagate_run(int argc, char **argv)
       for (size_t j = 0; j < res->noutputs; j++) print_output(stdout, run, j);
       print_limits(stdout, run);
       if (outdir) printf("\nrun record and tables written to %s/\n", outdir);
+      if (plotdir) print_plots(stdout, &plots, plotdir);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
       cli_print_caution(stdout);
     }
   }
+  sp_runplot_set_clear(&plots);
   free(record);
   sp_run_free(run);
   free(pcts);
