@@ -528,10 +528,9 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
         ch->drawn = 1;
         snprintf(ch->caption, sizeof ch->caption,
                  "%s against its most influential input %s (largest rank share) on %zu "
-                 "points drawn afresh with the run's seed on block stream %llu, not the "
-                 "run's own samples%s.",
-                 c->mo->name, mi->name, kept, (unsigned long long)SP_RUNPLOT_SCATTER_BLOCK,
-                 c->nlim ? "; limits dashed" : "");
+                 "points drawn afresh with the run's seed on the streams of block 2^48 - 2, "
+                 "none of the run's own samples%s.",
+                 c->mo->name, mi->name, kept, c->nlim ? "; limits dashed" : "");
       }
     }
   }

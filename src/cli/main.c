@@ -14,6 +14,8 @@ static const cli_command commands[] = {
    cli_fit_run, cli_fit_help},
   {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
    cli_propagate_run, cli_propagate_help},
+  {"report", "one self-contained HTML report of a run, its fits and its data",
+   cli_report_run, cli_report_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
