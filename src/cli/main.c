@@ -12,6 +12,7 @@ static const cli_command commands[] = {
    cli_summary_run, cli_summary_help},
   {"fit", "fit distribution families to a column, rank them, write a fit record",
    cli_fit_run, cli_fit_help},
+  {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
