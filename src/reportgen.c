@@ -14,6 +14,7 @@
 #include <jansson.h>
 
 #include "scatterprop/dist.h"
+#include "scatterprop/fitplot.h"
 #include "scatterprop/ingest.h"
 #include "scatterprop/record.h"
 #include "scatterprop/report.h"
@@ -1073,67 +1074,13 @@ static sp_status repeat_run(const json_t *root, const char *file, int threads, s
 
 /* ---- charts of the fits ------------------------------------------------------ */
 
-/* Candidates drawn over the data: the chosen fit and the best others. */
-#define FIT_CURVES_MAX 4
-
 typedef struct {
-  sp_plot_curve curves[FIT_CURVES_MAX];
-  size_t n;
-} curve_set;
-
-/* theta in fam's order from a params object; 0 when one is missing. */
-static int params_theta(const sp_family *fam, const json_t *params, double *theta)
-{
-  for (size_t k = 0; k < fam->nparam; k++) {
-    const json_t *v = json_object_get(params, fam->param_names[k]);
-    if (!json_is_number(v)) return 0;
-    theta[k] = json_number_value(v);
-  }
-  return 1;
-}
-
-static void fit_curves(builder *b, const fitsrc *f, curve_set *cs)
-{
-  memset(cs, 0, sizeof *cs);
-  sp_plot_curve *c = &cs->curves[cs->n++];
-  c->family = f->rec.family;
-  memcpy(c->theta, f->rec.params, sizeof c->theta);
-  c->label = pool_fmt(&b->p, "%s: chosen", f->rec.family->title);
-  const json_t *cands = json_object_get(f->root, "candidates");
-  for (long rank = 1; cs->n < FIT_CURVES_MAX && rank <= (long)json_array_size(cands); rank++) {
-    for (size_t i = 0; i < json_array_size(cands); i++) {
-      const json_t *e = json_array_get(cands, i);
-      const json_t *rk = json_object_get(e, "rank");
-      if (!json_is_integer(rk) || json_integer_value(rk) != rank) continue;
-      const sp_family *fam = sp_family_find(gstr(e, "family"));
-      if (!fam || fam == f->rec.family || !fam->logpdf || !fam->cdf_P) continue;
-      sp_plot_curve *d = &cs->curves[cs->n];
-      if (!params_theta(fam, json_object_get(e, "params"), d->theta)) continue;
-      d->family = fam;
-      d->label = pool_fmt(&b->p, "%s: rank %ld", fam->title, rank);
-      cs->n++;
-      break;
-    }
-  }
-}
-
-typedef struct {
-  const char *workdir;  /* where charts are drawn, or NULL when none can be */
+  const char *workdir;  /* where charts are drawn */
   const char *gnuplot;
   const char *template_dir;
   int have_gnuplot;
   const char *no_render_note;
 } chart_env;
-
-static void chart_opts(const chart_env *env, const char *stem, sp_plot_options *po)
-{
-  sp_plot_options_init(po);
-  po->outdir = env->workdir;
-  po->stem = stem;
-  po->overwrite = 1;
-  po->gnuplot = env->gnuplot;
-  po->template_dir = env->template_dir;
-}
 
 /* A figure for a chart call's outcome. */
 static void figure_of(builder *b, const chart_env *env, const sp_plot_output *out,
@@ -1143,124 +1090,57 @@ static void figure_of(builder *b, const chart_env *env, const sp_plot_output *ou
              out->rendered ? NULL : env->no_render_note);
 }
 
-static sp_status fit_charts(builder *b, const chart_env *env, const fitsrc *f, size_t k,
-                            sp_error *err)
+/* The fit's charts by the fitplot module, from the data already read and
+ * checked: the charts of the whole column (pooled over the lots) and the
+ * lots side by side.  The per-lot charts are left to 'scatterprop plot'. */
+static sp_status fit_charts(builder *b, const chart_env *env, const fitsrc *f, sp_error *err)
 {
-  curve_set cs;
-  fit_curves(b, f, &cs);
-  if (f->n < 2) {
-    add_text(b, SP_REPORT_NOTE, "Fewer than two values: no charts.");
-    return SP_OK;
-  }
-  /* Stems fit%zu_NAME_KIND stay within SP_PLOT_STEM_MAX: NAME is cut to
-   * 64 bytes. */
-  char stem[SP_PLOT_STEM_MAX + 64], cs_name[SP_PLOT_STEM_MAX + 1];
-  sp_plot_stem(f->col->name, cs_name, sizeof cs_name);
-  cs_name[64] = '\0';
-  sp_plot_fit spec;
-  memset(&spec, 0, sizeof spec);
-  spec.axis.quantity = f->col->name;
-  spec.axis.unit = f->col->unit_text;
-  spec.x = f->x;
-  spec.n = f->n;
-  spec.curves = cs.curves;
-  spec.ncurves = cs.n;
-  spec.band_level = 0.95;
-  sp_plot_output out;
+  sp_fitplot_plan plan;
+  memset(&plan, 0, sizeof plan);
+  sp_status st = sp_fitplot_plan_read(f->path, &plan, NULL, err);
+  if (st != SP_OK) return st;
   sp_plot_options po;
-  char title[SP_PLOT_LABEL_MAX];
-  static const char *const kinds[] = {"hist", "prob", "ecdf"};
-  for (int kind = 0; kind < 3; kind++) {
-    snprintf(stem, sizeof stem, "fit%zu_%s_%s", k + 1, cs_name, kinds[kind]);
-    chart_opts(env, stem, &po);
-    sp_status st;
-    const char *cap;
-    if (kind == 0) {
-      snprintf(title, sizeof title, "%s: fitted candidates", f->col->name);
-      spec.title = title;
-      st = sp_plot_fit_histogram(&spec, &po, &out, err);
+  sp_plot_options_init(&po);
+  po.outdir = env->workdir;
+  po.overwrite = 1;
+  po.gnuplot = env->gnuplot;
+  po.template_dir = env->template_dir;
+  sp_fitplot_charts charts;
+  memset(&charts, 0, sizeof charts);
+  st = sp_fitplot_draw(&plan, f->table, &po, &charts, err);
+  const char *col = f->col->name;
+  for (size_t i = 0; st == SP_OK && i < charts.ncharts; i++) {
+    const sp_fitplot_chart *c = &charts.charts[i];
+    if (c->kind != SP_FITPLOT_LOTS && strncmp(c->subject, "lot ", 4) == 0) continue;
+    const char *cap = NULL;
+    switch (c->kind) {
+    case SP_FITPLOT_HIST:
       cap = pool_fmt(&b->p, "%s: histogram of the %zu values (density) with the chosen fit "
-                            "(solid) and the next candidates by rank (dashed).",
-                     f->col->name, f->n);
-    } else if (kind == 1) {
-      snprintf(title, sizeof title, "%s: probability plot of the chosen fit (%s)", f->col->name,
-               f->rec.family->name);
-      spec.title = title;
-      st = sp_plot_fit_probability(&spec, &po, &out, err);
+                            "(solid) and the best-ranked candidates not rejected (dashed).",
+                     col, f->n);
+      break;
+    case SP_FITPLOT_PROB:
       cap = pool_fmt(&b->p, "%s: ordered values against the quantiles of the chosen %s fit at "
                             "the Hazen plotting positions (i - 0.5)/n, with a pointwise 95 %% "
                             "band.",
-                     f->col->name, f->rec.family->title);
-    } else {
-      snprintf(title, sizeof title, "%s: empirical CDF", f->col->name);
-      spec.title = title;
-      st = sp_plot_fit_ecdf(&spec, &po, &out, err);
+                     col, f->rec.family->title);
+      break;
+    case SP_FITPLOT_ECDF:
       cap = pool_fmt(&b->p, "%s: empirical distribution function of the values with the "
-                            "candidates' CDFs.",
-                     f->col->name);
+                            "CDFs of the fits drawn in the histogram.",
+                     col);
+      break;
+    case SP_FITPLOT_LOTS:
+      cap = pool_fmt(&b->p, "%s: empirical CDF of each lot (column %s), with the chosen fit "
+                            "to all lots pooled (dashed).",
+                     col, f->by ? f->by : "?");
+      break;
     }
-    if (st == SP_ENUMERIC) {
-      /* A fit whose quantiles cannot reach the data: a fact to show, not a
-       * reason to refuse the report. */
-      add_figure(b, NULL, cap, pool_str(&b->p, err->msg));
-      sp_error_clear(err);
-      continue;
-    }
-    if (st != SP_OK) return st;
-    figure_of(b, env, &out, cap);
+    if (!c->drawn) add_figure(b, NULL, cap, c->note);
+    else figure_of(b, env, &c->out, cap);
   }
-  if (!f->by) return SP_OK;
-  sp_group *groups = NULL;
-  size_t ng = 0;
-  sp_status st = sp_table_groups(f->table, f->by, &groups, &ng, err);
-  if (st != SP_OK) return st;
-  if (ng > SP_PLOT_LOTS_MAX || ng < 2) {
-    add_text(b, SP_REPORT_NOTE,
-             pool_fmt(&b->p, "%zu lots: no chart of the lots (it shows 2 to %d).", ng,
-                      SP_PLOT_LOTS_MAX));
-    sp_groups_free(groups, ng);
-    return SP_OK;
-  }
-  sp_plot_lot *lots = calloc(ng, sizeof *lots);
-  double *vals = malloc((f->col->n ? f->col->n : 1) * sizeof *vals);
-  if (!lots || !vals) {
-    free(lots);
-    free(vals);
-    sp_groups_free(groups, ng);
-    return sp_fail(err, SP_ENOMEM, "out of memory");
-  }
-  size_t used = 0, nl = 0;
-  for (size_t g = 0; g < ng; g++) {
-    size_t start = used;
-    for (size_t r = 0; r < groups[g].n; r++) {
-      size_t row = groups[g].rows[r];
-      if (!(f->col->flags[row] & SP_OBS_MISSING)) vals[used++] = f->col->values[row];
-    }
-    if (used == start) continue;
-    lots[nl].label = groups[g].label;
-    lots[nl].x = vals + start;
-    lots[nl].n = used - start;
-    nl++;
-  }
-  sp_plot_lots ls;
-  memset(&ls, 0, sizeof ls);
-  snprintf(title, sizeof title, "%s by %s", f->col->name, f->by);
-  ls.title = title;
-  ls.axis = spec.axis;
-  ls.lots = lots;
-  ls.nlots = nl;
-  ls.pooled = &cs.curves[0];
-  snprintf(stem, sizeof stem, "fit%zu_%s_lots", k + 1, cs_name);
-  chart_opts(env, stem, &po);
-  st = nl >= 1 ? sp_plot_fit_lots(&ls, &po, &out, err) : SP_OK;
-  if (st == SP_OK && nl >= 1)
-    figure_of(b, env, &out,
-              pool_fmt(&b->p, "%s: empirical CDF of each lot (column %s), with the chosen fit "
-                              "to all lots pooled (dashed).",
-                       f->col->name, f->by));
-  free(lots);
-  free(vals);
-  sp_groups_free(groups, ng);
+  sp_fitplot_charts_free(&charts);
+  sp_fitplot_plan_clear(&plan);
   return st;
 }
 
@@ -1506,7 +1386,7 @@ static sp_status section_fits(builder *b, const chart_env *env, const fitsrc *fi
         set_cell(b, t, i, 4, msg ? msg : gstr(e, "choice_reason"));
       }
     }
-    sp_status st = fit_charts(b, env, f, k, err);
+    sp_status st = fit_charts(b, env, f, err);
     if (st != SP_OK) return st;
   }
   return SP_OK;

@@ -220,33 +220,15 @@ static void print_limits(FILE *out, const sp_run *run)
   }
 }
 
-/* The templates of a program run from its build folder inside the source
- * tree: <folder of the program>/../plots (the library searches
- * $SCATTERPROP_PLOTS and the installed share/scatterprop/plots first). */
-static const char *build_tree_plots(char *buf, size_t n)
-{
-  char exe[4096];
-  ssize_t len = readlink("/proc/self/exe", exe, sizeof exe - 1);
-  if (len <= 0) return NULL;
-  exe[len] = '\0';
-  char *slash = strrchr(exe, '/');
-  if (!slash) return NULL;
-  *slash = '\0';
-  int w = snprintf(buf, n, "%s/../plots", exe);
-  return w > 0 && (size_t)w < n ? buf : NULL;
-}
-
 /* Draws the run's charts into dir. */
 static int draw_plots(const sp_run *run, const char *dir, int force, sp_runplot_set *set)
 {
   sp_error err;
   sp_error_clear(&err);
-  char fallback[4096];
+  char tdir[SP_PLOT_PATH_MAX];
   sp_runplot_options po;
   sp_runplot_options_init(&po);
-  po.plot.outdir = dir;
-  po.plot.overwrite = force;
-  po.plot.template_dir = build_tree_plots(fallback, sizeof fallback);
+  cli_plot_options(&po.plot, dir, force, tdir, sizeof tdir);
   return sp_runplot_draw(run, &po, set, &err) == SP_OK ? CLI_OK : cli_report(&err);
 }
 

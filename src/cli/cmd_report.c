@@ -3,7 +3,6 @@
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
-#include <unistd.h>
 
 #include "cli.h"
 #include "scatterprop/record.h"
@@ -42,22 +41,6 @@ void cli_report_help(FILE *out)
           "little memory, 6 I/O error (a file missing, the report exists).\n"
           "\n");
   cli_print_caution(out);
-}
-
-/* The templates of a program run from its build folder inside the source
- * tree: <folder of the program>/../plots (the library searches
- * $SCATTERPROP_PLOTS and the installed share/scatterprop/plots first). */
-static const char *build_tree_plots(char *buf, size_t n)
-{
-  char exe[4096];
-  ssize_t len = readlink("/proc/self/exe", exe, sizeof exe - 1);
-  if (len <= 0) return NULL;
-  exe[len] = '\0';
-  char *slash = strrchr(exe, '/');
-  if (!slash) return NULL;
-  *slash = '\0';
-  int w = snprintf(buf, n, "%s/../plots", exe);
-  return w > 0 && (size_t)w < n ? buf : NULL;
 }
 
 int cli_report_run(int argc, char **argv)
@@ -109,8 +92,10 @@ int cli_report_run(int argc, char **argv)
   sp_record_time_utc((int64_t)time(NULL), created);
   o.command = command;
   o.created = created;
-  char fallback[4096];
-  o.template_dir = build_tree_plots(fallback, sizeof fallback);
+  char tdir[SP_PLOT_PATH_MAX];
+  sp_plot_options po;
+  cli_plot_options(&po, ".", 0, tdir, sizeof tdir);
+  o.template_dir = po.template_dir;
 
   sp_error err;
   sp_error_clear(&err);

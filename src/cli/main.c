@@ -14,6 +14,7 @@ static const cli_command commands[] = {
    cli_fit_run, cli_fit_help},
   {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
    cli_propagate_run, cli_propagate_help},
+  {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
   {"report", "one self-contained HTML report of a run, its fits and its data",
    cli_report_run, cli_report_help},
 };
