@@ -976,15 +976,19 @@ static sp_status compare_results(const json_t *root, const sp_run *run, const ch
 }
 
 /* The percent value v whose v / 100 is the recorded probability p (the
- * engine divides the percentiles it is given by 100). */
+ * engine divides the percentiles it is given by 100): p * 100 or one of
+ * its neighbours a few units in the last place away (the product and the
+ * quotient each round once).  When none is, p * 100 is returned and the
+ * comparison of the repeated run reports the percentile that differs. */
 static double percent_of(double p)
 {
-  double v = p * 100.0;
-  for (int step = 0; step < 8 && v / 100.0 != p; step++) {
-    double up = nextafter(v, INFINITY), dn = nextafter(v, -INFINITY);
+  const double v = p * 100.0;
+  double up = v, dn = v;
+  for (int step = 0; step < 4; step++) {
     if (up / 100.0 == p) return up;
     if (dn / 100.0 == p) return dn;
-    v = v / 100.0 < p ? up : dn;
+    up = nextafter(up, INFINITY);
+    dn = nextafter(dn, -INFINITY);
   }
   return v;
 }
@@ -1024,9 +1028,11 @@ static sp_status repeat_run(const json_t *root, const char *file, int threads, s
   sp_run_options ro;
   sp_run_options_init(&ro);
   sp_engine_options *eo = &ro.engine;
-  if ((st = sp_engine_method_find(gstr(o, "method"), &eo->method, err)) != SP_OK) {
+  sp_error me;
+  sp_error_clear(&me);
+  if (sp_engine_method_find(gstr(o, "method"), &eo->method, &me) != SP_OK) {
     sp_run_free(run);
-    return sp_fail(err, SP_EDATA, "run record %s: field 'options.method': %s", file, err->msg);
+    return sp_fail(err, SP_EDATA, "run record %s: field 'options.method': %s", file, me.msg);
   }
   eo->seed = guint(o, "seed");
   eo->block = (size_t)guint(o, "block");
@@ -1884,8 +1890,13 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   char work[SP_PLOT_PATH_MAX] = "";
   if (st == SP_OK) {
     const char *tmp = getenv("TMPDIR");
-    snprintf(work, sizeof work, "%s/scatterprop-report-XXXXXX", tmp && *tmp ? tmp : "/tmp");
-    if (!mkdtemp(work)) {
+    /* mkdtemp template: six X characters, spelled out to keep markers greppable. */
+    int tw = snprintf(work, sizeof work, "%s/scatterprop-report-%s",
+                      tmp && *tmp ? tmp : "/tmp", "XX" "XX" "XX");
+    if (tw < 0 || (size_t)tw >= sizeof work) {
+      st = sp_fail(err, SP_ELIMIT, "TMPDIR is too long for a temporary folder name");
+      work[0] = '\0';
+    } else if (!mkdtemp(work)) {
       st = sp_fail(err, SP_EIO, "cannot create a temporary folder %s: %s", work, strerror(errno));
       work[0] = '\0';
     }

@@ -88,8 +88,11 @@ sp_status sp_runplot_convergence(const double *y, uint64_t n, double p, sp_runpl
         dev += d;
         ss += d * d;
       }
-      /* Chan, Golub & LeVeque (1983): the sum of the deviations corrects
-       * the rounding of the first pass's mean. */
+      /* Chan, T.F., Golub, G.H. & LeVeque, R.J. (1983). Algorithms for
+       * computing the sample variance: analysis and recommendations. The
+       * American Statistician 37(3), 242-247: the sum of the deviations
+       * corrects the rounding of the first pass's mean (and the sum of
+       * squares, by the same term). */
       mean += dev / (double)m;
       double var = (ss - dev * dev / (double)m) / (double)(m - 1);
       size_t ilo, ihi;

@@ -372,7 +372,9 @@ static double spearman(const double *x, const double *y, size_t n)
   free(rx);
   free(ry);
   free(pair);
-  /* 1 - 6 sum d^2 / (n (n^2 - 1)) (Spearman 1904; closed form without ties) */
+  /* rho = 1 - 6 sum d^2 / (n (n^2 - 1)), the closed form without ties of
+   * Spearman, C. (1904). The proof and measurement of association between
+   * two things. American Journal of Psychology 15(1), 72-101. */
   return 1 - 6 * d2 / ((double)n * ((double)n * n - 1));
 }
 

@@ -117,9 +117,10 @@ void sp_runplot_set_clear(sp_runplot_set *set);
  * is the prefix of the first N_k samples, N_k = SP_RUNPLOT_CONV_FIRST * 2^k
  * while N_k < n, and N = n last.  At each point, over the m finite values
  * of the prefix:
- *   mean     two-pass mean (the deviations' sum is added back, as in
- *            Chan, Golub & LeVeque 1983, The American Statistician 37(3),
- *            242-247);
+ *   mean     two-pass mean, the deviations' sum added back (Chan, T.F.,
+ *            Golub, G.H. & LeVeque, R.J. (1983). Algorithms for computing
+ *            the sample variance: analysis and recommendations. The
+ *            American Statistician 37(3), 242-247);
  *   mean_se  s / sqrt(m), s with the m - 1 denominator;
  *   lo, hi   the probabilistically symmetric coverage interval of JCGM
  *            101:2008 7.7.1 at coverage p: the order statistics
