@@ -8,6 +8,7 @@
 
 #include "build_info.h"
 #include "json_build.h"
+#include "provenance_internal.h"
 
 struct sp_run {
   char *path;
@@ -428,6 +429,7 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   set(&w, o, "method", str(&w, sp_engine_method_name((sp_engine_method)res->method)));
   set(&w, o, "seed", integer(&w, (long long)res->seed));
   set(&w, o, "generator", str(&w, "pcg64 (XSL-RR 128/64), block streams per docs/reproducibility.md"));
+  set(&w, o, "stream_rule", str(&w, sp_provenance_stream_rule()));
   set(&w, o, "samples_requested", integer(&w, (long long)res->requested));
   set(&w, o, "block", integer(&w, (long long)res->block));
   set(&w, o, "replicates", integer(&w, (long long)res->replicates));
@@ -435,6 +437,29 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   set(&w, o, "adaptive_digits", integer(&w, opt->engine.adaptive_digits));
   set(&w, o, "sobol_samples", integer(&w, (long long)opt->sobol_samples));
   set(&w, o, "threads", integer(&w, (long long)res->threads));
+  /* The rest of the resolved engine options, so that a replay can run
+   * exactly this run again (docs/run-record.md). */
+  json_t *extra = arr(&w);
+  for (size_t k = 0; k < opt->engine.npercentiles; k++)
+    push(&w, extra, num(&w, opt->engine.percentiles[k]));
+  set(&w, o, "extra_percentiles", extra);
+  set(&w, o, "histogram_bins", integer(&w, (long long)opt->engine.hist_bins));
+  set(&w, o, "max_samples", integer(&w, (long long)opt->engine.max_samples));
+  set(&w, o, "limit_confidence", num(&w, opt->engine.limit_confidence));
+  set(&w, o, "sobol_bootstrap", integer(&w, (long long)opt->engine.bootstrap));
+  set(&w, o, "index_confidence", num(&w, opt->engine.index_confidence));
+  size_t nout = sp_model_output_count(r->model);
+  json_t *hr = json_null(), *tol = json_null();
+  if (opt->engine.hist_range) {
+    hr = arr(&w);
+    for (size_t k = 0; k < 2 * nout; k++) push(&w, hr, num(&w, opt->engine.hist_range[k]));
+  }
+  if (opt->engine.tolerance) {
+    tol = arr(&w);
+    for (size_t k = 0; k < nout; k++) push(&w, tol, num(&w, opt->engine.tolerance[k]));
+  }
+  set(&w, o, "histogram_range", hr);
+  set(&w, o, "tolerances", tol);
   set(&w, root, "options", o);
   json_t *rs = obj(&w);
   static const char *const status_names[] = {"complete", "cancelled", "not stabilised"};
@@ -467,6 +492,7 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   }
   set(&w, rs, "limits", lims);
   set(&w, root, "results", rs);
+  set(&w, root, "provenance", sp_provenance_json_object(&w));
   char *txt = w.bad ? NULL : json_dumps(root, REC_DUMP_FLAGS);
   json_decref(root);
   if (!txt) sp_fail(err, SP_ENOMEM, "cannot build the run record (out of memory)");

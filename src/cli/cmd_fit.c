@@ -301,8 +301,8 @@ int cli_fit_run(int argc, char **argv)
   sp_record_fit_source src = {t->path, t->size, t->sha256, t->meta, t->nmeta, col->name,
                               col->unit_text, by, g.pooled_missing, (int64_t)time(NULL)};
   if (json || outpath) {
-    sp_status st = by ? sp_record_fit_grouped_dumps(&g, &src, &text, &err)
-                      : sp_record_fit_dumps(&g.pooled, &src, &text, &err);
+    sp_status st = by ? sp_record_fit_grouped_dumps_cmd(&g, &src, argc, argv, &text, &err)
+                      : sp_record_fit_dumps_cmd(&g.pooled, &src, argc, argv, &text, &err);
     if (st != SP_OK) {
       rc = cli_report(&err);
       goto done;
