@@ -7,6 +7,7 @@
 #include <time.h>
 
 #include "cli.h"
+#include "scatterprop/archive.h"
 #include "scatterprop/dist.h"
 #include "scatterprop/fit.h"
 #include "scatterprop/ingest.h"
@@ -19,6 +20,7 @@ void cli_fit_help(FILE *out)
           "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
           "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
           "                       [--alpha A] [--out FIT.json] [--force] [--json]\n"
+          "                       [--archive DIR]\n"
           "\n"
           "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
           "(Anderson-Darling A², Kolmogorov-Smirnov D, Cramér-von Mises W²), ranks the\n"
@@ -42,7 +44,9 @@ void cli_fit_help(FILE *out)
           "  --threads K       bootstrap threads (default: all); results do not depend on K\n"
           "  --alpha A         A² rejection level (default 0.05)\n"
           "  --out FIT.json    write the fit record (refuses to overwrite without --force)\n"
-          "  --force           allow --out to replace an existing file\n"
+          "  --force           allow --out (and --archive) to replace existing files\n"
+          "  --archive DIR     also copy the data and the record into the folder DIR,\n"
+          "                    self-contained ('scatterprop replay DIR/fits/NAME.json')\n"
           "  --json            print the fit record instead of the table\n"
           "  --help            show this help\n"
           "\n"
@@ -207,6 +211,7 @@ static int split_families(const char *list, char **buf, const char ***names, siz
 int cli_fit_run(int argc, char **argv)
 {
   const char *file = NULL, *column = NULL, *by = NULL, *families = NULL, *outpath = NULL;
+  const char *archive = NULL;
   int json = 0, force = 0, rc = CLI_OK;
   sp_fit_options o;
   sp_fit_options_init(&o);
@@ -251,6 +256,8 @@ int cli_fit_run(int argc, char **argv)
         rc = cli_usage("fit", "--alpha: must be between 0 and 1, got %s", v);
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--out", &v, &rc)) != 0) {
       if (m > 0) outpath = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--archive", &v, &rc)) != 0) {
+      if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--force")) {
       force = 1;
     } else if (cli_opt_flag(argv, i, "--json")) {
@@ -300,7 +307,7 @@ int cli_fit_run(int argc, char **argv)
   const sp_column *col = sp_table_column(t, column);
   sp_record_fit_source src = {t->path, t->size, t->sha256, t->meta, t->nmeta, col->name,
                               col->unit_text, by, g.pooled_missing, (int64_t)time(NULL)};
-  if (json || outpath) {
+  if (json || outpath || archive) {
     sp_status st = by ? sp_record_fit_grouped_dumps_cmd(&g, &src, argc, argv, &text, &err)
                       : sp_record_fit_dumps_cmd(&g.pooled, &src, argc, argv, &text, &err);
     if (st != SP_OK) {
@@ -312,6 +319,16 @@ int cli_fit_run(int argc, char **argv)
     if (err.code == SP_EIO && !force) sp_error_hint(&err, "use --force to replace it");
     rc = cli_report(&err);
     goto done;
+  }
+  if (archive) {
+    char name[SP_FIT_TEXT_MAX];
+    const char *base = outpath ? strrchr(outpath, '/') : NULL;
+    snprintf(name, sizeof name, "%s", outpath ? (base ? base + 1 : outpath) : column);
+    if (!outpath) strncat(name, ".json", sizeof name - strlen(name) - 1);
+    if (sp_archive_fit(archive, text, name, NULL, 0, force, &err) != SP_OK) {
+      rc = cli_report(&err);
+      goto done;
+    }
   }
   if (json) {
     printf("%s\n", text);
@@ -332,6 +349,7 @@ int cli_fit_run(int argc, char **argv)
     }
     print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
     if (outpath) printf("\nfit record written to %s\n", outpath);
+    if (archive) printf("archive written to %s/\n", archive);
     printf("\n");
     cli_print_caution(stdout);
   }
