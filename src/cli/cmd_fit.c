@@ -10,6 +10,7 @@
 #include "scatterprop/archive.h"
 #include "scatterprop/dist.h"
 #include "scatterprop/fit.h"
+#include "scatterprop/fitplot.h"
 #include "scatterprop/ingest.h"
 #include "scatterprop/record.h"
 
@@ -19,7 +20,7 @@ void cli_fit_help(FILE *out)
           "Usage: scatterprop fit FILE.csv --column NAME [--families LIST] [--by LOT]\n"
           "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
           "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
-          "                       [--alpha A] [--out FIT.json] [--force] [--json]\n"
+          "                       [--alpha A] [--out FIT.json] [--plots DIR] [--force] [--json]\n"
           "                       [--archive DIR]\n"
           "\n"
           "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
@@ -44,9 +45,18 @@ void cli_fit_help(FILE *out)
           "  --threads K       bootstrap threads (default: all); results do not depend on K\n"
           "  --alpha A         A² rejection level (default 0.05)\n"
           "  --out FIT.json    write the fit record (refuses to overwrite without --force)\n"
-          "  --force           allow --out (and --archive) to replace existing files\n"
-          "  --archive DIR     also copy the data and the record into the folder DIR,\n"
-          "                    self-contained ('scatterprop replay DIR/fits/NAME.json')\n"
+          "  --plots DIR       draw the fit's charts into DIR (made if missing): for the\n"
+          "                    column, and with --by for each lot and pooled, a histogram\n"
+          "                    with the densities of the chosen family and the two best\n"
+          "                    candidates not rejected, a probability plot of the chosen\n"
+          "                    family with a 95%% pointwise band, the empirical CDF with\n"
+          "                    the fitted CDFs; with --by the lots side by side.  PNG and\n"
+          "                    SVG need gnuplot; without it the .gp scripts and .dat data\n"
+          "                    are written.  'scatterprop plot FIT.json' redraws them\n"
+          "  --force           allow --out, --plots and --archive to replace existing files\n"
+          "  --archive DIR     also copy the data, the record and the charts into the\n"
+          "                    folder DIR, self-contained ('scatterprop replay\n"
+          "                    DIR/fits/NAME.json' works wherever DIR is moved)\n"
           "  --json            print the fit record instead of the table\n"
           "  --help            show this help\n"
           "\n"
@@ -208,10 +218,37 @@ static int split_families(const char *list, char **buf, const char ***names, siz
   return 1;
 }
 
+/* --archive: the record (named as --out names it, else COLUMN.json), its
+ * data and the charts drawn (their files under charts/). */
+static sp_status archive_fit(const char *dir, const char *text, const char *outpath,
+                             const char *column, const sp_fitplot_charts *charts, int force,
+                             sp_error *err)
+{
+  char name[SP_FIT_TEXT_MAX];
+  const char *base = outpath ? strrchr(outpath, '/') : NULL;
+  snprintf(name, sizeof name, "%s%s", outpath ? (base ? base + 1 : outpath) : column,
+           outpath ? "" : ".json");
+  sp_archive_extra *ex = calloc(4 * charts->ncharts + 1, sizeof *ex);
+  if (!ex) return sp_fail(err, SP_ENOMEM, "out of memory");
+  size_t n = 0;
+  for (size_t i = 0; i < charts->ncharts; i++) {
+    const sp_fitplot_chart *c = &charts->charts[i];
+    if (!c->drawn) continue;
+    const char *files[4] = {c->out.data, c->out.script, c->out.rendered ? c->out.png : "",
+                            c->out.rendered ? c->out.svg : ""};
+    for (int k = 0; k < 4; k++)
+      if (files[k][0]) ex[n++] = (sp_archive_extra){files[k], "charts"};
+  }
+  sp_status s = sp_archive_fit(dir, text, name, ex, n, force, err);
+  free(ex);
+  return s;
+}
+
 int cli_fit_run(int argc, char **argv)
 {
   const char *file = NULL, *column = NULL, *by = NULL, *families = NULL, *outpath = NULL;
   const char *archive = NULL;
+  const char *plotdir = NULL;
   int json = 0, force = 0, rc = CLI_OK;
   sp_fit_options o;
   sp_fit_options_init(&o);
@@ -256,6 +293,9 @@ int cli_fit_run(int argc, char **argv)
         rc = cli_usage("fit", "--alpha: must be between 0 and 1, got %s", v);
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--out", &v, &rc)) != 0) {
       if (m > 0) outpath = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--plots", &v, &rc)) != 0) {
+      if (m > 0 && !*v) rc = cli_usage("fit", "--plots: empty folder name");
+      else if (m > 0) plotdir = v;
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--archive", &v, &rc)) != 0) {
       if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--force")) {
@@ -299,6 +339,10 @@ int cli_fit_run(int argc, char **argv)
   sp_fit_grouped g;
   memset(&g, 0, sizeof g);
   char *text = NULL;
+  sp_fitplot_plan plan;
+  memset(&plan, 0, sizeof plan);
+  sp_fitplot_charts charts;
+  memset(&charts, 0, sizeof charts);
   if (sp_table_read(file, &io, &t, &err) != SP_OK ||
       sp_fit_table(t, column, by, &o, &g, &err) != SP_OK) {
     rc = cli_report(&err);
@@ -320,18 +364,25 @@ int cli_fit_run(int argc, char **argv)
     rc = cli_report(&err);
     goto done;
   }
-  if (archive) {
-    char name[SP_FIT_TEXT_MAX];
-    const char *base = outpath ? strrchr(outpath, '/') : NULL;
-    snprintf(name, sizeof name, "%s", outpath ? (base ? base + 1 : outpath) : column);
-    if (!outpath) strncat(name, ".json", sizeof name - strlen(name) - 1);
-    if (sp_archive_fit(archive, text, name, NULL, 0, force, &err) != SP_OK) {
+  if (plotdir) {
+    sp_plot_options po;
+    char tdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
+    if (sp_fitplot_plan_from_fit(&g, col->name, col->unit_text, by, &plan, &err) != SP_OK ||
+        sp_fitplot_draw(&plan, t, &po, &charts, &err) != SP_OK) {
       rc = cli_report(&err);
+      if (charts.ndrawn) cli_plot_print(stderr, &charts, plotdir);
       goto done;
     }
   }
+  if (archive && archive_fit(archive, text, outpath, column, &charts, force, &err) != SP_OK) {
+    rc = cli_report(&err);
+    goto done;
+  }
   if (json) {
     printf("%s\n", text);
+    /* The JSON text stays alone on stdout. */
+    if (plotdir) cli_plot_print(stderr, &charts, plotdir);
   } else {
     printf("%s: column %s", t->path, col->name);
     if (col->unit_text) printf(" [%s]", col->unit_text);
@@ -349,12 +400,18 @@ int cli_fit_run(int argc, char **argv)
     }
     print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
     if (outpath) printf("\nfit record written to %s\n", outpath);
+    if (plotdir) {
+      printf("\n");
+      cli_plot_print(stdout, &charts, plotdir);
+    }
     if (archive) printf("archive written to %s/\n", archive);
     printf("\n");
     cli_print_caution(stdout);
   }
   if (g.pooled.chosen < 0) rc = CLI_NUMERIC;
 done:
+  sp_fitplot_charts_free(&charts);
+  sp_fitplot_plan_clear(&plan);
   free(text);
   sp_fit_grouped_clear(&g);
   sp_table_free(t);
