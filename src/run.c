@@ -427,7 +427,15 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   set(&w, root, "correlations", corr);
   json_t *o = obj(&w);
   set(&w, o, "method", str(&w, sp_engine_method_name((sp_engine_method)res->method)));
-  set(&w, o, "seed", integer(&w, (long long)res->seed));
+  /* A seed of 2^63 or more does not fit a JSON integer that every reader
+   * takes: it is written as its decimal digits (as in fit records). */
+  if (res->seed <= (uint64_t)INT64_MAX) {
+    set(&w, o, "seed", integer(&w, (long long)res->seed));
+  } else {
+    char sd[24];
+    snprintf(sd, sizeof sd, "%llu", (unsigned long long)res->seed);
+    set(&w, o, "seed", str(&w, sd));
+  }
   set(&w, o, "generator", str(&w, "pcg64 (XSL-RR 128/64), block streams per docs/reproducibility.md"));
   set(&w, o, "stream_rule", str(&w, sp_provenance_stream_rule()));
   set(&w, o, "samples_requested", integer(&w, (long long)res->requested));

@@ -179,6 +179,13 @@ START_TEST(test_run_roundtrip)
   /* From another folder: the record names its files by the folder it was
    * made in. */
   ck_assert_int_eq(sh("cd / && " SP " replay '%s/run/run.json' --threads 3", dir), 0);
+  /* The largest seed, 2^64 - 1, is recorded as its digits and replays. */
+  ck_assert_int_eq(sh(SP " propagate model/m.spm --samples 5000 --seed 18446744073709551615 "
+                      "--json > big.json"), 0);
+  char *big = slurp(path_in("big.json"));
+  ASSERT_HAS(big, "\"seed\": \"18446744073709551615\"");
+  free(big);
+  ck_assert_int_eq(sh(SP " replay big.json"), 0);
   sp_replay_report rep;
   sp_error err;
   sp_error_clear(&err);
@@ -411,6 +418,30 @@ START_TEST(test_other_build)
 }
 END_TEST
 
+START_TEST(test_old_fit_record)
+{
+  /* A fit record from before provenance was added (version 1 all the
+   * same): its new fields deleted, it still replays, within the other-build
+   * tolerance since it does not name its compiler and libraries. */
+  const char *del[][3] = {{"provenance", NULL, NULL}, {"command", NULL, NULL},
+                          {"tool", "compiler", NULL}, {"tool", "gsl", NULL},
+                          {"tool", "system", NULL}, {"options", "threads", NULL},
+                          {"options", "bootstrap", "generator"},
+                          {"options", "bootstrap", "stream_rule"},
+                          {"options", "bootstrap", "rule"}};
+  for (size_t i = 0; i < sizeof del / sizeof del[0]; i++) {
+    size_t n = del[i][2] ? 3 : del[i][1] ? 2 : 1;
+    edit("fits/dm.json", del[i], n, 0, 1, NULL);
+  }
+  char *t = slurp(path_in("fits/dm.json"));
+  ck_assert_ptr_null(strstr(t, "provenance"));
+  free(t);
+  ck_assert_int_eq(sh(SP " replay fits/dm.json"), 0);
+  ASSERT_HAS(err_text, "does not name the compiler and libraries");
+  ASSERT_HAS(out_text, "within relative 1e-09");
+}
+END_TEST
+
 static Suite *suite(void)
 {
   Suite *s = suite_create("replay");
@@ -426,6 +457,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_malformed_records);
   tcase_add_test(t, test_threads_identical);
   tcase_add_test(t, test_other_build);
+  tcase_add_test(t, test_old_fit_record);
   suite_add_tcase(s, t);
   TCase *c = tcase_create("compare");
   tcase_add_test(c, test_compare_rules);
