@@ -5,6 +5,7 @@
 #include "scatterprop/provenance.h"
 
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <sys/utsname.h>
 #include <unistd.h>
@@ -153,6 +154,27 @@ const char *sp_provenance_stream_rule(void)
          "docs/reproducibility.md";
 }
 
+json_t *sp_provenance_text(wctx *w, const char *s)
+{
+  if (!s) return json_null();
+  json_t *j = json_string(s);
+  if (j) return j;
+  /* Not valid UTF-8 (a folder or argument named in another encoding):
+   * every byte outside ASCII becomes '?', so the record can still be
+   * written and says where the text was. */
+  size_t n = strlen(s);
+  char *t = malloc(n + 1);
+  if (!t) {
+    w->bad = 1;
+    return NULL;
+  }
+  for (size_t i = 0; i <= n; i++) t[i] = (unsigned char)s[i] < 0x80 ? s[i] : '?';
+  j = json_string(t);
+  free(t);
+  if (!j) w->bad = 1;
+  return j;
+}
+
 json_t *sp_provenance_json_object(wctx *w)
 {
   sp_provenance p;
@@ -160,7 +182,7 @@ json_t *sp_provenance_json_object(wctx *w)
   char cwd[4096];
   sp_provenance_cwd(cwd, sizeof cwd);
   json_t *o = obj(w), *b = obj(w), *lib = obj(w), *os = obj(w);
-  set(w, o, "working_directory", cwd[0] ? str(w, cwd) : json_null());
+  set(w, o, "working_directory", cwd[0] ? sp_provenance_text(w, cwd) : json_null());
   set(w, b, "version", str(w, p.version));
   set(w, b, "git", str(w, p.git));
   set(w, b, "compiler", str(w, p.compiler));

@@ -11,4 +11,9 @@
  * lists the keys).  Failures are recorded in w->bad. */
 json_t *sp_provenance_json_object(wctx *w);
 
+/* s as a JSON string; bytes outside ASCII become '?' when s is not valid
+ * UTF-8 (so a record never fails over a folder's or an argument's
+ * encoding).  NULL s gives null. */
+json_t *sp_provenance_text(wctx *w, const char *s);
+
 #endif

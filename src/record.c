@@ -201,7 +201,7 @@ static json_t *record_root(wctx *w, const sp_fit_result *r, const sp_record_fit_
   set(w, root, "tool", tool);
   set(w, root, "created_utc", str(w, when));
   json_t *cmd = arr(w);
-  for (int i = 0; argv && i < argc; i++) push(w, cmd, str(w, argv[i]));
+  for (int i = 0; argv && i < argc; i++) push(w, cmd, sp_provenance_text(w, argv[i]));
   set(w, root, "command", cmd);
   set(w, data, "path", str(w, s->path ? s->path : ""));
   set(w, data, "size", integer(w, (long long)s->size));

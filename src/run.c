@@ -408,7 +408,7 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   sp_record_time_utc(created, ts);
   set(&w, root, "created_utc", str(&w, ts));
   json_t *cmd = arr(&w);
-  for (int i = 0; i < argc; i++) push(&w, cmd, str(&w, argv[i]));
+  for (int i = 0; i < argc; i++) push(&w, cmd, sp_provenance_text(&w, argv[i]));
   set(&w, root, "command", cmd);
   set(&w, root, "caution", str(&w, sp_caution_text()));
   json_t *model = obj(&w);
