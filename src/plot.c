@@ -775,13 +775,13 @@ static sp_status finish(chart *c, const sp_plot_options *opt, sp_plot_output *ou
   } else {
     char dirword[SP_PLOT_PATH_MAX / 2];
     shell_word(opt->outdir, dirword, sizeof dirword);
-    if (opt->gnuplot && !*opt->gnuplot)
-      snprintf(out->hint, sizeof out->hint,
-               "rendering not requested; to render the chart: cd %s && gnuplot %s.gp", dirword,
-               stem);
-    else
-      snprintf(out->hint, sizeof out->hint,
-               "gnuplot not found; to render the chart: cd %s && gnuplot %s.gp", dirword, stem);
+    /* A hint cut short by a very long folder name is still a hint. */
+    int hw = snprintf(out->hint, sizeof out->hint,
+                     "%s; to render the chart: cd %s && gnuplot %s.gp",
+                     opt->gnuplot && !*opt->gnuplot ? "rendering not requested"
+                                                    : "gnuplot not found",
+                     dirword, stem);
+    if (hw < 0) out->hint[0] = '\0';
   }
   st = SP_OK;
 unstage:
