@@ -543,6 +543,13 @@ sp_status sp_archive_run(const char *dir, const char *record_text,
   if (s == SP_OK) s = sp_replay_need_str(&c, model, "text", "model.text", 0, &text);
   if (s == SP_OK) s = sp_replay_need_arr(&c, root, "inputs", "inputs", &inputs);
   if (s == SP_OK) {
+    char tsha[SP_SHA256_HEX_LEN];
+    sp_sha256_buffer(text, json_string_length(json_object_get(model, "text")), tsha);
+    if (strcmp(tsha, msha) != 0)
+      s = sp_fail(err, SP_EDATA, "archive: the model text in the run record does not match "
+                  "its sha256 (%s, the text hashes to %s)", msha, tsha);
+  }
+  if (s == SP_OK) {
     ninputs = json_array_size(inputs);
     rw = calloc(ninputs ? ninputs : 1, sizeof *rw);
     rels = calloc(ninputs ? ninputs : 1, sizeof *rels);
@@ -573,7 +580,14 @@ sp_status sp_archive_run(const char *dir, const char *record_text,
       if (rels[k] && origs[k] && strcmp(origs[k], resolved) == 0) rel = strdup(rels[k]);
     if (!rel) {
       size_t flen = 0;
-      char *ftext = read_checked(resolved, fsha, "fit record", "the run record", &flen, err);
+      int there = 0;
+      char *where = sp_replay_locate("", root, resolved, &there);
+      if (!where) {
+        s = sp_fail(err, SP_ENOMEM, "out of memory");
+        break;
+      }
+      char *ftext = read_checked(where, fsha, "fit record", "the run record", &flen, err);
+      free(where);
       if (!ftext) {
         s = err ? err->code : SP_EIO;
         break;

@@ -52,8 +52,10 @@ sp_status sp_archive_fit(const char *dir, const char *record_text, const char *r
 
 /* Archives a run: record_text (a run record, as sp_run_record_json made
  * it) goes to DIR/run.json, its model to DIR/model.spm, each fit record
- * it names (by inputs[].fit_record.resolved, valid from the current
- * directory) to DIR/fits/ and each of their data files to DIR/data/.
+ * it names (by inputs[].fit_record.resolved, relative to the working
+ * directory the record names, else to the current one) to DIR/fits/ and
+ * each of their data files to DIR/data/.  The model is the text inside
+ * the record (checked against model.sha256), not the file.
  * Errors as sp_archive_fit, and SP_EMODEL when the rewritten model does
  * not compile to the same inputs (a fit("...") that could not be
  * rewritten). */
