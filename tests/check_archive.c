@@ -150,6 +150,26 @@ START_TEST(test_fit_archive_moves)
 }
 END_TEST
 
+START_TEST(test_fit_archive_charts)
+{
+  /* The charts of --plots go to charts/, byte for byte (the .gp and .dat
+   * files are written with or without gnuplot). */
+  ck_assert_int_eq(sh("cd src && " SP " fit in/coil_dm.csv --column Dm --pvalues approximation "
+                      "--plots P --archive ../A"), 0);
+  char a[65], b[65];
+  sha256sum("src/P/fit_Dm_hist.gp", a);
+  sha256sum("A/charts/fit_Dm_hist.gp", b);
+  ck_assert_str_eq(a, b);
+  sha256sum("src/P/fit_Dm_prob.dat", a);
+  sha256sum("A/charts/fit_Dm_prob.dat", b);
+  ck_assert_str_eq(a, b);
+  char *m = slurp(path_in("A/MANIFEST.sha256"));
+  ASSERT_HAS(m, "  charts/fit_Dm_ecdf.dat\n");
+  free(m);
+  ck_assert_int_eq(sh(SP " replay A/fits/Dm.json"), 0);
+}
+END_TEST
+
 START_TEST(test_run_archive_moves)
 {
   ck_assert_int_eq(sh("cd src && " SP " propagate model/m.spm --samples 20000 --out run "
@@ -317,6 +337,7 @@ static Suite *suite(void)
   tcase_add_checked_fixture(t, setup, teardown);
   tcase_set_timeout(t, 120);
   tcase_add_test(t, test_fit_archive_moves);
+  tcase_add_test(t, test_fit_archive_charts);
   tcase_add_test(t, test_run_archive_moves);
   tcase_add_test(t, test_never_overwritten);
   tcase_add_test(t, test_changed_input_refused);
