@@ -22,6 +22,8 @@
 #include "scatterprop/runplot.h"
 #include "scatterprop/summary.h"
 
+#include "replay_internal.h"
+
 void sp_reportgen_options_init(sp_reportgen_options *o) { memset(o, 0, sizeof *o); }
 
 /* ---- a pool: everything the report spec points to ----------------------- */
@@ -429,7 +431,6 @@ static sp_status check_run_record(checker *c, const json_t *root)
                                c->kind, c->file, w);
       snprintf(w2, sizeof w2, "%s.fit_record", w);
       field(c, fr, w2, "path", T_STR);
-      field(c, fr, w2, "resolved", T_STR);
       field(c, fr, w2, "size", T_INT);
       check_hex(c, fr, w2, "sha256");
       field(c, fr, w2, "data_sha256", T_STR | T_NULL);
@@ -451,6 +452,19 @@ static sp_status check_run_record(checker *c, const json_t *root)
                                       "adaptive_digits", "sobol_samples", "threads"};
   for (size_t i = 0; i < 6; i++) field(c, o, "options", okeys[i], T_INT);
   field(c, o, "options", "coverage", T_NUM);
+  static const char *const ok2[] = {"histogram_bins", "max_samples", "sobol_bootstrap"};
+  for (size_t i = 0; i < 3; i++) field(c, o, "options", ok2[i], T_INT);
+  field(c, o, "options", "limit_confidence", T_NUM);
+  field(c, o, "options", "index_confidence", T_NUM);
+  json_t *xp = field(c, o, "options", "extra_percentiles", T_ARR);
+  for (size_t i = 0; xp && i < json_array_size(xp); i++)
+    element(c, xp, "options.extra_percentiles", i, T_NUM);
+  json_t *hr = field(c, o, "options", "histogram_range", T_ARR | T_NULL);
+  for (size_t i = 0; json_is_array(hr) && i < json_array_size(hr); i++)
+    element(c, hr, "options.histogram_range", i, T_NUM | T_NULL);
+  json_t *tl = field(c, o, "options", "tolerances", T_ARR | T_NULL);
+  for (size_t i = 0; json_is_array(tl) && i < json_array_size(tl); i++)
+    element(c, tl, "options.tolerances", i, T_NUM);
   json_t *res = field(c, root, "", "results", T_OBJ);
   field(c, res, "results", "status", T_STR);
   field(c, res, "results", "samples", T_INT);
@@ -728,9 +742,9 @@ static void fitsrc_clear(fitsrc *f)
 
 /* Opens fit record fr (the run record's inputs[i].fit_record) and its
  * data, checking both SHA-256. */
-static sp_status open_fit(fitsrc *f, const json_t *fr, const char *input_name, sp_error *err)
+static sp_status open_fit(fitsrc *f, const json_t *fr, const char *resolved,
+                          const char *input_name, sp_error *err)
 {
-  const char *resolved = gstr(fr, "resolved");
   f->written = gstr(fr, "path");
   f->path = strdup(resolved);
   if (!f->path) return sp_fail(err, SP_ENOMEM, "out of memory");
@@ -764,14 +778,22 @@ static sp_status open_fit(fitsrc *f, const json_t *fr, const char *input_name, s
     return sp_fail(err, SP_EDATA, "fit record %s names data with SHA-256 %s, the run record "
                                   "says %s",
                    resolved, dsha, rsha);
-  /* The data path is as given to 'scatterprop fit': relative to the folder
-   * the fit ran in; failing that, try the fit record's folder. */
-  const char *dp = gstr(data, "path");
+  /* The data path is as given to 'scatterprop fit': found as the replay
+   * module finds it (relative to the record's folder in an archive, else to
+   * the folder the fit ran in, else to the current one); failing that, the
+   * fit record's folder is tried. */
+  int exists = 0;
+  char *located = sp_replay_locate(resolved, f->root, gstr(data, "path"), &exists);
+  if (!located) return sp_fail(err, SP_ENOMEM, "out of memory");
+  char dpath[SP_PLOT_PATH_MAX];
+  snprintf(dpath, sizeof dpath, "%s", located);
+  free(located);
+  const char *dp = dpath;
   char alt[2 * SP_PLOT_PATH_MAX + 2] = "";
   if (!readable(dp) && dp[0] != '/') {
     char d[SP_PLOT_PATH_MAX];
     dir_of(resolved, d, sizeof d);
-    snprintf(alt, sizeof alt, "%s/%s", d, dp);
+    snprintf(alt, sizeof alt, "%s/%s", d, gstr(data, "path"));
     if (readable(alt)) dp = alt;
   }
   if (!readable(dp)) {
@@ -815,219 +837,97 @@ static sp_status open_fit(fitsrc *f, const json_t *fr, const char *input_name, s
 
 /* ---- the repeated run ------------------------------------------------------- */
 
+/* The repeated run's record against the recorded one, by the rules of the
+ * replay module (replay.h: the same fields compared, the same ignored):
+ * bit for bit when the record names this build, else within
+ * SP_REPLAY_DEFAULT_TOLERANCE.  *tol receives the tolerance applied. */
+static sp_status compare_with_record(const json_t *root, const sp_run *run,
+                                     const sp_run_options *ro, const char *file, double *tol,
+                                     sp_error *err)
+{
+  char *text = sp_run_record_json(run, ro, 0, NULL, 0, err);
+  if (!text) return err ? err->code : SP_ENOMEM;
+  json_error_t je;
+  json_t *fresh = json_loads(text, 0, &je);
+  free(text);
+  if (!fresh) return sp_fail(err, SP_ENOMEM, "cannot read back the repeated run's record");
+  sp_replay_report rep;
+  memset(&rep, 0, sizeof rep);
+  sp_replay_check_build(root, &rep);
+  *tol = rep.build_differs ? SP_REPLAY_DEFAULT_TOLERANCE : 0.0;
+  sp_status st = sp_replay_compare_trees(root, fresh, SP_REPLAY_RUN, *tol, &rep, err);
+  if (st == SP_OK && rep.ndiffs_total > 0) {
+    const sp_replay_diff *d = &rep.diffs[0];
+    char more[64] = "";
+    if (rep.ndiffs_total > 1)
+      snprintf(more, sizeof more, " (and %zu more figure%s)", rep.ndiffs_total - 1,
+               rep.ndiffs_total == 2 ? "" : "s");
+    st = sp_fail(err, SP_EDIFFERS, "repeating the run does not reproduce run record %s: %s is "
+                                   "%s in the record, %s now%s",
+                 file, d->path, d->recorded, d->replayed, more);
+    if (rep.build_note[0])
+      sp_error_hint(err, "the record was made by another build (%s); 'scatterprop replay "
+                         "%s' lists every difference; charts drawn by 'propagate --plots "
+                         "DIR' can be used with --plots DIR",
+                    rep.build_note, file);
+    else
+      sp_error_hint(err, "'scatterprop replay %s' lists every difference; charts drawn by "
+                         "'propagate --plots DIR' can be used with --plots DIR",
+                    file);
+  }
+  sp_replay_report_clear(&rep);
+  json_decref(fresh);
+  return st;
+}
+
+/* Arrays of the repeated run's options (owned, free()). */
 typedef struct {
-  sp_error *err;
-  const char *file;
-  sp_status st;
-} cmpctx;
+  double *pct, *hr, *tol;
+} run_arrays;
 
-static void differs(cmpctx *c, const char *what, const char *rec, const char *now)
+static double *num_array(const json_t *a, size_t *n)
 {
-  if (c->st != SP_OK) return;
-  c->st = sp_fail(c->err, SP_EDIFFERS, "repeating the run does not reproduce run record %s: "
-                                       "%s is %s in the record, %s now",
-                  c->file, what, rec, now);
-}
-
-/* A recorded number (null for a non-finite value) against a result. */
-static void cmp_num(cmpctx *c, const char *what, double rec, double now)
-{
-  if (c->st != SP_OK) return;
-  if (isnan(rec) ? isfinite(now) : !(rec == now)) {
-    char a[40], b[40];
-    snprintf(a, sizeof a, "%.17g", rec);
-    snprintf(b, sizeof b, "%.17g", now);
-    differs(c, what, isnan(rec) ? "null" : a, b);
-  }
-}
-
-static void cmp_u64(cmpctx *c, const char *what, uint64_t rec, uint64_t now)
-{
-  if (c->st != SP_OK || rec == now) return;
-  char a[32], b[32];
-  snprintf(a, sizeof a, "%llu", (unsigned long long)rec);
-  snprintf(b, sizeof b, "%llu", (unsigned long long)now);
-  differs(c, what, a, b);
-}
-
-static void cmp_str(cmpctx *c, const char *what, const char *rec, const char *now)
-{
-  if (c->st != SP_OK) return;
-  if (strcmp(rec ? rec : "", now ? now : "") != 0) differs(c, what, rec, now);
-}
-
-/* Every recorded result against the repeated run's. */
-static sp_status compare_results(const json_t *root, const sp_run *run, const char *file,
-                                 sp_error *err)
-{
-  cmpctx c = {err, file, SP_OK};
-  const sp_engine_result *res = sp_run_result(run);
-  const sp_engine_sobol_result *sob = sp_run_sobol(run);
-  const sp_model *m = sp_run_model(run);
-  const json_t *rs = json_object_get(root, "results");
-  static const char *const status_names[] = {"complete", "cancelled", "not stabilised"};
-  cmp_str(&c, "results.status", gstr(rs, "status"),
-          res->status < 3 ? status_names[res->status] : "unknown");
-  cmp_u64(&c, "results.samples", guint(rs, "samples"), res->samples);
-  const json_t *outs = json_object_get(rs, "outputs");
-  cmp_u64(&c, "the number of outputs", json_array_size(outs), res->noutputs);
-  char w[160];
-  for (size_t j = 0; j < res->noutputs && c.st == SP_OK; j++) {
-    const json_t *x = json_array_get(outs, j);
-    const sp_engine_output *o = &res->out[j];
-    const sp_model_output *mo = sp_model_output_at(m, j);
-#define W(key) (snprintf(w, sizeof w, "results.outputs[%zu].%s", j, key), w)
-    cmp_str(&c, W("name"), gstr(x, "name"), mo->name);
-    cmp_str(&c, W("unit"), gstr(x, "unit"), mo->unit_text);
-    cmp_u64(&c, W("n"), guint(x, "n"), o->n);
-    cmp_u64(&c, W("nan"), guint(x, "nan"), o->nan);
-    cmp_u64(&c, W("posinf"), guint(x, "posinf"), o->posinf);
-    cmp_u64(&c, W("neginf"), guint(x, "neginf"), o->neginf);
-    cmp_num(&c, W("mean"), gnum(x, "mean"), o->mean);
-    cmp_num(&c, W("sd"), gnum(x, "sd"), o->sd);
-    cmp_num(&c, W("sem"), gnum(x, "sem"), o->sem);
-    cmp_num(&c, W("min"), gnum(x, "min"), o->min);
-    cmp_num(&c, W("max"), gnum(x, "max"), o->max);
-    cmp_num(&c, W("skewness"), gnum(x, "skewness"), o->skewness);
-    cmp_num(&c, W("excess_kurtosis"), gnum(x, "excess_kurtosis"), o->kurtosis);
-    const json_t *ci = json_object_get(x, "coverage_interval");
-    cmp_num(&c, W("coverage_interval.coverage"), gnum(ci, "coverage"), res->coverage);
-    const json_t *sy = json_object_get(ci, "symmetric"), *sh = json_object_get(ci, "shortest");
-    cmp_num(&c, W("coverage_interval.symmetric[0]"), anum(sy, 0), o->sym_lo);
-    cmp_num(&c, W("coverage_interval.symmetric[1]"), anum(sy, 1), o->sym_hi);
-    cmp_num(&c, W("coverage_interval.shortest[0]"), anum(sh, 0), o->short_lo);
-    cmp_num(&c, W("coverage_interval.shortest[1]"), anum(sh, 1), o->short_hi);
-    const json_t *pct = json_object_get(x, "percentiles");
-    cmp_u64(&c, W("percentiles (count)"), json_array_size(pct), res->npct);
-    for (size_t k = 0; k < res->npct && c.st == SP_OK; k++) {
-      const json_t *e = json_array_get(pct, k);
-      snprintf(w, sizeof w, "results.outputs[%zu].percentiles[%zu].p", j, k);
-      cmp_num(&c, w, gnum(e, "p"), res->pct_p[k]);
-      snprintf(w, sizeof w, "results.outputs[%zu].percentiles[%zu].value", j, k);
-      cmp_num(&c, w, gnum(e, "value"), res->pct[j * res->npct + k]);
-    }
-    const json_t *h = json_object_get(x, "histogram");
-    cmp_num(&c, W("histogram.lo"), gnum(h, "lo"), o->hist_lo);
-    cmp_num(&c, W("histogram.hi"), gnum(h, "hi"), o->hist_hi);
-    cmp_u64(&c, W("histogram.below"), guint(h, "below"), o->hist_below);
-    cmp_u64(&c, W("histogram.above"), guint(h, "above"), o->hist_above);
-    const json_t *cnt = json_object_get(h, "counts");
-    cmp_u64(&c, W("histogram.counts (bins)"), json_array_size(cnt), res->nbins);
-    for (size_t b = 0; b < res->nbins && c.st == SP_OK; b++) {
-      snprintf(w, sizeof w, "results.outputs[%zu].histogram.counts[%zu]", j, b);
-      cmp_u64(&c, w, (uint64_t)json_integer_value(json_array_get(cnt, b)),
-              res->hist[j * res->nbins + b]);
-    }
-    const json_t *sens = json_object_get(x, "sensitivity");
-    cmp_u64(&c, W("sensitivity (inputs)"), json_array_size(sens), res->ninputs);
-    for (size_t i = 0; i < res->ninputs && c.st == SP_OK; i++) {
-      const json_t *e = json_array_get(sens, i);
-      snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].input", j, i);
-      cmp_str(&c, w, gstr(e, "input"), sp_model_input_at(m, i)->name);
-      snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].spearman", j, i);
-      cmp_num(&c, w, gnum(e, "spearman"), res->rank_corr ? res->rank_corr[j * res->ninputs + i]
-                                                         : NAN);
-      snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].share", j, i);
-      cmp_num(&c, w, gnum(e, "share"), res->rank_share ? res->rank_share[j * res->ninputs + i]
-                                                       : NAN);
-      const json_t *S = json_object_get(e, "S"), *ST = json_object_get(e, "ST");
-      if ((S != NULL) != (sob != NULL)) {
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].S", j, i);
-        differs(&c, w, S ? "present" : "absent", sob ? "computed" : "not computed");
-      }
-      if (S && sob) {
-        const sp_engine_index *ix = &sob->idx[j * sob->ninputs + i];
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].S.value", j, i);
-        cmp_num(&c, w, gnum(S, "value"), ix->S);
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].S.lo", j, i);
-        cmp_num(&c, w, gnum(S, "lo"), ix->S_lo);
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].S.hi", j, i);
-        cmp_num(&c, w, gnum(S, "hi"), ix->S_hi);
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].ST.value", j, i);
-        cmp_num(&c, w, gnum(ST, "value"), ix->ST);
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].ST.lo", j, i);
-        cmp_num(&c, w, gnum(ST, "lo"), ix->ST_lo);
-        snprintf(w, sizeof w, "results.outputs[%zu].sensitivity[%zu].ST.hi", j, i);
-        cmp_num(&c, w, gnum(ST, "hi"), ix->ST_hi);
-      }
-    }
-#undef W
-  }
-  const json_t *lims = json_object_get(rs, "limits");
-  cmp_u64(&c, "the number of limits", json_array_size(lims), res->nlimits);
-  for (size_t k = 0; k < res->nlimits && c.st == SP_OK; k++) {
-    const json_t *l = json_array_get(lims, k);
-    const sp_engine_exceed *e = &res->exceed[k];
-    snprintf(w, sizeof w, "results.limits[%zu].value", k);
-    cmp_num(&c, w, gnum(l, "value"), e->value);
-    snprintf(w, sizeof w, "results.limits[%zu].violations", k);
-    cmp_u64(&c, w, guint(l, "violations"), e->violations);
-    snprintf(w, sizeof w, "results.limits[%zu].n", k);
-    cmp_u64(&c, w, guint(l, "n"), e->n);
-    snprintf(w, sizeof w, "results.limits[%zu].p_violation", k);
-    cmp_num(&c, w, gnum(l, "p_violation"), e->p);
-    const json_t *iv = json_object_get(l, "interval");
-    snprintf(w, sizeof w, "results.limits[%zu].interval[0]", k);
-    cmp_num(&c, w, anum(iv, 0), e->lo);
-    snprintf(w, sizeof w, "results.limits[%zu].interval[1]", k);
-    cmp_num(&c, w, anum(iv, 1), e->hi);
-  }
-  return c.st;
-}
-
-/* The percent value v whose v / 100 is the recorded probability p (the
- * engine divides the percentiles it is given by 100): p * 100 or one of
- * its neighbours a few units in the last place away (the product and the
- * quotient each round once).  When none is, p * 100 is returned and the
- * comparison of the repeated run reports the percentile that differs. */
-static double percent_of(double p)
-{
-  const double v = p * 100.0;
-  double up = v, dn = v;
-  for (int step = 0; step < 4; step++) {
-    if (up / 100.0 == p) return up;
-    if (dn / 100.0 == p) return dn;
-    up = nextafter(up, INFINITY);
-    dn = nextafter(dn, -INFINITY);
-  }
+  *n = json_array_size(a);
+  double *v = malloc((*n ? *n : 1) * sizeof *v);
+  for (size_t i = 0; v && i < *n; i++) v[i] = anum(a, i);
   return v;
 }
 
-/* Repeats the run from the record into *out. */
-static sp_status repeat_run(const json_t *root, const char *file, int threads, sp_run **out,
-                            double **pcts, sp_error *err)
+/* Repeats the run from the record into *out (the model at model_path). */
+static sp_status repeat_run(const json_t *root, const char *file, const char *model_path,
+                            int threads, sp_run **out, sp_run_options *ro, run_arrays *ar,
+                            sp_error *err)
 {
   *out = NULL;
-  *pcts = NULL;
   const json_t *model = json_object_get(root, "model"), *o = json_object_get(root, "options");
-  const json_t *rs = json_object_get(root, "results");
-  const char *mpath = gstr(model, "path");
+  if (!readable(model_path)) {
+    sp_fail(err, SP_EIO, "model %s of run record %s cannot be read: %s", model_path, file,
+            strerror(errno));
+    return sp_error_hint(err, "the model path is the one given to 'scatterprop propagate'; "
+                              "make the report from the folder it was run in, or give "
+                              "--plots DIR");
+  }
   sp_model_diags diags;
   sp_model_diags_init(&diags);
   sp_run *run = NULL;
-  sp_status st = sp_run_open(mpath, &run, &diags, err);
+  sp_status st = sp_run_open(model_path, &run, &diags, err);
   if (st != SP_OK && diags.count > 0) {
     char buf[2048];
     sp_model_diag_format(&diags.items[0], buf, sizeof buf);
     sp_fail(err, SP_EMODEL, "the model of run record %s no longer compiles: %s", file, buf);
   }
   sp_model_diags_clear(&diags);
-  if (st != SP_OK) {
-    if (st == SP_EIO)
-      sp_error_hint(err, "the model path is the one given to 'scatterprop propagate'; make the "
-                         "report from the folder it was run in, or give --plots DIR");
-    return st;
-  }
+  if (st != SP_OK) return st;
   if (strcmp(sp_model_sha256(sp_run_model(run)), gstr(model, "sha256")) != 0) {
     sp_fail(err, SP_EDATA, "model %s has changed since the run: its SHA-256 is %s, run record "
                            "%s says %s",
-            mpath, sp_model_sha256(sp_run_model(run)), file, gstr(model, "sha256"));
+            model_path, sp_model_sha256(sp_run_model(run)), file, gstr(model, "sha256"));
     sp_run_free(run);
     return sp_error_hint(err, "restore the model, or run 'scatterprop propagate' again");
   }
-  sp_run_options ro;
-  sp_run_options_init(&ro);
-  sp_engine_options *eo = &ro.engine;
+  /* The recorded options, as the replay module reads them. */
+  sp_run_options_init(ro);
+  sp_engine_options *eo = &ro->engine;
   sp_error me;
   sp_error_clear(&me);
   if (sp_engine_method_find(gstr(o, "method"), &eo->method, &me) != SP_OK) {
@@ -1035,38 +935,42 @@ static sp_status repeat_run(const json_t *root, const char *file, int threads, s
     return sp_fail(err, SP_EDATA, "run record %s: field 'options.method': %s", file, me.msg);
   }
   eo->seed = guint(o, "seed");
+  eo->samples = guint(o, "samples_requested");
   eo->block = (size_t)guint(o, "block");
-  if (guint(o, "replicates") > 0) eo->replicates = (size_t)guint(o, "replicates");
+  eo->replicates = (size_t)guint(o, "replicates");
   eo->coverage = gnum(o, "coverage");
   eo->adaptive_digits = (unsigned)guint(o, "adaptive_digits");
-  if (eo->adaptive_digits) eo->max_samples = guint(o, "samples_requested");
-  else eo->samples = guint(o, "samples_requested");
-  ro.sobol_samples = guint(o, "sobol_samples");
+  ro->sobol_samples = guint(o, "sobol_samples");
+  eo->hist_bins = (size_t)guint(o, "histogram_bins");
+  eo->max_samples = guint(o, "max_samples");
+  eo->limit_confidence = gnum(o, "limit_confidence");
+  eo->bootstrap = (size_t)guint(o, "sobol_bootstrap");
+  eo->index_confidence = gnum(o, "index_confidence");
+  size_t n = 0, nout = sp_model_output_count(sp_run_model(run));
+  ar->pct = num_array(json_object_get(o, "extra_percentiles"), &n);
+  eo->percentiles = ar->pct;
+  eo->npercentiles = n;
+  const json_t *hr = json_object_get(o, "histogram_range");
+  if (json_is_array(hr)) {
+    ar->hr = num_array(hr, &n);
+    eo->hist_range = ar->hr;
+    if (n != 2 * nout) st = sp_fail(err, SP_EDATA, "run record %s: field 'options."
+                                                   "histogram_range' must hold 2 x %zu numbers",
+                                    file, nout);
+  }
+  const json_t *tl = json_object_get(o, "tolerances");
+  if (json_is_array(tl)) {
+    ar->tol = num_array(tl, &n);
+    eo->tolerance = ar->tol;
+    if (n != nout) st = sp_fail(err, SP_EDATA, "run record %s: field 'options.tolerances' "
+                                               "must hold %zu numbers",
+                                file, nout);
+  }
+  if (!ar->pct || (json_is_array(hr) && !ar->hr) || (json_is_array(tl) && !ar->tol))
+    st = sp_fail(err, SP_ENOMEM, "out of memory");
   eo->threads = threads;
   eo->keep_samples = 1;
-  const json_t *outs = json_object_get(rs, "outputs");
-  const json_t *x0 = json_array_get(outs, 0);
-  if (x0) {
-    const json_t *cnt = json_object_get(json_object_get(x0, "histogram"), "counts");
-    if (json_array_size(cnt) > 0) eo->hist_bins = json_array_size(cnt);
-    const json_t *pct = json_object_get(x0, "percentiles");
-    size_t np = json_array_size(pct);
-    *pcts = malloc((np ? np : 1) * sizeof **pcts);
-    if (!*pcts) {
-      sp_run_free(run);
-      return sp_fail(err, SP_ENOMEM, "out of memory");
-    }
-    /* Every recorded percentile is asked for; the engine merges those that
-     * are among its defaults. */
-    for (size_t k = 0; k < np; k++) (*pcts)[k] = percent_of(gnum(json_array_get(pct, k), "p"));
-    eo->percentiles = *pcts;
-    eo->npercentiles = np;
-    const json_t *sens = json_array_get(json_object_get(x0, "sensitivity"), 0);
-    if (sens) eo->rank_sensitivity = json_is_number(json_object_get(sens, "spearman"));
-  }
-  const json_t *l0 = json_array_get(json_object_get(rs, "limits"), 0);
-  if (l0) eo->limit_confidence = gnum(l0, "confidence");
-  st = sp_run_execute(run, &ro, err);
+  if (st == SP_OK) st = sp_run_execute(run, ro, err);
   if (st == SP_ENOMEM)
     sp_error_hint(err, "the report repeats the run keeping every sample for its charts; draw "
                        "them with 'propagate --plots DIR' and give the report --plots DIR");
@@ -1720,6 +1624,8 @@ static void provenance(builder *b, const json_t *root, const char *record, const
            gstr(tool, "gsl") ? gstr(tool, "gsl") : "?",
            gstr(tool, "system") ? gstr(tool, "system") : "?");
   add_setting(b, "run made by", buf);
+  const json_t *wd = json_object_get(json_object_get(root, "provenance"), "working_directory");
+  if (json_is_string(wd) && *json_string_value(wd)) add_setting(b, "run made in", json_string_value(wd));
   add_setting(b, "run command", join_command(&b->p, json_object_get(root, "command"), "scatterprop"));
   add_setting(b, "method", gstr(o, "method"));
   snprintf(buf, sizeof buf, "%llu", (unsigned long long)guint(o, "seed"));
@@ -1777,7 +1683,8 @@ static void provenance(builder *b, const json_t *root, const char *record, const
 
 static sp_status build_report(builder *b, const json_t *root, const char *record,
                               const sp_reportgen_options *opt, const chart_env *env,
-                              fitsrc *fits, size_t nf, const sp_runplot_set *set, sp_error *err)
+                              fitsrc *fits, size_t nf, const sp_runplot_set *set, double tol,
+                              sp_error *err)
 {
   char rsha[SP_SHA256_HEX_LEN];
   uint64_t rsize = 0;
@@ -1788,9 +1695,15 @@ static sp_status build_report(builder *b, const json_t *root, const char *record
           ? pool_fmt(&b->p, "taken from %s as 'propagate --plots' drew them; each histogram's "
                             "data was checked against the record, the other charts were not "
                             "checked", opt->plots_dir)
-          : "the run was repeated from the record (same model, fit records, seed and options) "
-            "and reproduced every recorded figure bit for bit; the charts are drawn from the "
-            "repeated run";
+          : tol == 0
+                ? "the run was repeated from the record (same model, fit records, seed and "
+                  "options) and reproduced every recorded figure bit for bit; the charts are "
+                  "drawn from the repeated run"
+                : pool_fmt(&b->p, "the run was repeated from the record (same model, fit "
+                                  "records, seed and options) on another build and reproduced "
+                                  "every recorded figure within a relative %g; the charts are "
+                                  "drawn from the repeated run",
+                           tol);
   provenance(b, root, record, rsha, rsize, fits, nf, charts, opt->plots_dir);
   section_summary(b, root);
   section_data(b, fits, nf);
@@ -1849,6 +1762,16 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
     st = sp_fail(err, SP_EIO, "%s exists; give --force to replace it", outpath);
   }
 
+  /* The model where the replay module finds it (the recorded path, read
+   * relative to the folder the run was made in, or to the record's folder
+   * in an archive); the fit records are named relative to its folder. */
+  int mexists = 0;
+  char *model_path = st == SP_OK ? sp_replay_locate(run_record, root, gstr(model, "path"),
+                                                    &mexists)
+                                 : NULL;
+  char *model_dir = model_path ? sp_replay_dir_of(model_path) : NULL;
+  if (st == SP_OK && (!model_path || !model_dir)) st = sp_fail(err, SP_ENOMEM, "out of memory");
+
   /* Fit records and data, one entry per distinct record. */
   const json_t *inputs = json_object_get(root, "inputs");
   size_t ni = json_array_size(inputs), nf = 0;
@@ -1858,31 +1781,30 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
     const json_t *in = json_array_get(inputs, i);
     const json_t *fr = json_object_get(in, "fit_record");
     if (!json_is_object(fr)) continue;
+    char *fp = sp_replay_join(model_dir, gstr(fr, "path"));
+    if (!fp) {
+      st = sp_fail(err, SP_ENOMEM, "out of memory");
+      break;
+    }
     size_t k = 0;
-    while (k < nf && strcmp(fits[k].path, gstr(fr, "resolved")) != 0) k++;
+    while (k < nf && strcmp(fits[k].path, fp) != 0) k++;
     if (k < nf) {
       size_t len = strlen(fits[k].inputs);
       snprintf(fits[k].inputs + len, sizeof fits[k].inputs - len, ", %s", gstr(in, "name"));
-      continue;
+    } else {
+      st = open_fit(&fits[nf++], fr, fp, gstr(in, "name"), err);
     }
-    st = open_fit(&fits[nf++], fr, gstr(in, "name"), err);
+    free(fp);
   }
 
   /* The run charts' source. */
   sp_run *run = NULL;
-  double *pcts = NULL;
+  sp_run_options ro;
+  run_arrays ar = {NULL, NULL, NULL};
+  double tol = 0;
   if (st == SP_OK && !opt->plots_dir) {
-    st = repeat_run(root, run_record, opt->threads, &run, &pcts, err);
-    if (st == SP_OK) st = compare_results(root, run, run_record, err);
-    if (st == SP_EDIFFERS) {
-      const json_t *tool = json_object_get(root, "tool");
-      sp_error_hint(err, "the run record was made by scatterprop %s (revision %s), this is %s "
-                         "(revision %s); charts drawn by 'propagate --plots DIR' can be used "
-                         "with --plots DIR",
-                    gstr(tool, "version") ? gstr(tool, "version") : "?",
-                    gstr(tool, "git") ? gstr(tool, "git") : "?", sp_version(),
-                    sp_git_revision());
-    }
+    st = repeat_run(root, run_record, model_path, opt->threads, &run, &ro, &ar, err);
+    if (st == SP_OK) st = compare_with_record(root, run, &ro, run_record, &tol, err);
   }
   if (st == SP_OK && opt->plots_dir) st = check_plots_dir(root, opt->plots_dir, run_record, err);
 
@@ -1916,18 +1838,18 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   sp_runplot_set set;
   memset(&set, 0, sizeof set);
   if (st == SP_OK && run) {
-    sp_runplot_options ro;
-    sp_runplot_options_init(&ro);
-    ro.plot.outdir = work;
-    ro.plot.overwrite = 1;
-    ro.plot.gnuplot = opt->gnuplot;
-    ro.plot.template_dir = opt->template_dir;
-    st = sp_runplot_draw(run, &ro, &set, err);
+    sp_runplot_options rpo;
+    sp_runplot_options_init(&rpo);
+    rpo.plot.outdir = work;
+    rpo.plot.overwrite = 1;
+    rpo.plot.gnuplot = opt->gnuplot;
+    rpo.plot.template_dir = opt->template_dir;
+    st = sp_runplot_draw(run, &rpo, &set, err);
   }
   builder b;
   memset(&b, 0, sizeof b);
   if (st == SP_OK)
-    st = build_report(&b, root, run_record, opt, &env, fits, nf, run ? &set : NULL, err);
+    st = build_report(&b, root, run_record, opt, &env, fits, nf, run ? &set : NULL, tol, err);
   if (st == SP_OK) {
     sp_report r;
     memset(&r, 0, sizeof r);
@@ -1968,7 +1890,11 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   sp_runplot_set_clear(&set);
   if (work[0]) remove_tree(work);
   sp_run_free(run);
-  free(pcts);
+  free(ar.pct);
+  free(ar.hr);
+  free(ar.tol);
+  free(model_path);
+  free(model_dir);
   for (size_t k = 0; k < nf; k++) fitsrc_clear(&fits[k]);
   free(fits);
   json_decref(root);

@@ -470,6 +470,36 @@ START_TEST(test_charts_embedded)
 }
 END_TEST
 
+START_TEST(test_from_another_folder_and_an_archive)
+{
+  /* The records name m.spm, fit.json and d.csv relative to dir, where the
+   * analysis ran; from another folder they are found through the folder
+   * the records were made in (provenance.working_directory). */
+  sp_reportgen_options o;
+  options(&o, path_in("elsewhere.html"));
+  sp_error err;
+  sp_error_clear(&err);
+  char cwd[1024];
+  ck_assert_ptr_nonnull(getcwd(cwd, sizeof cwd));
+  ck_assert_int_eq(chdir("/"), 0);
+  sp_reportgen_result res;
+  sp_status st = sp_reportgen_write(path_in("run/run.json"), &o, &res, &err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  ck_assert_int_eq(res.rerun, 1);
+  /* An archive (propagate --archive) holds copies named relative to it. */
+  ck_assert_int_eq(cli("propagate m.spm --samples 20000 --seed 777 --archive arch"), 0);
+  options(&o, path_in("archived.html"));
+  ck_assert_int_eq(chdir("/"), 0);
+  st = sp_reportgen_write(path_in("arch/run.json"), &o, &res, &err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  char *html = slurp(path_in("archived.html"));
+  ASSERT_HAS(html, path_in("arch/fits/"));
+  free(html);
+}
+END_TEST
+
 START_TEST(test_model_without_fits)
 {
   write_file("s.spm", "input p [N] ~ normal(mean=100, sd=5)\noutput q [N] = 2*p\n");
@@ -528,6 +558,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_repeated_run_must_match);
   tcase_add_test(t, test_bad_records);
   tcase_add_test(t, test_charts_embedded);
+  tcase_add_test(t, test_from_another_folder_and_an_archive);
   tcase_add_test(t, test_model_without_fits);
   tcase_add_test(t, test_command);
   suite_add_tcase(s, t);

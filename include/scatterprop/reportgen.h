@@ -25,20 +25,23 @@
  * run charts come from one of two places:
  *   - by default the run is repeated: the recorded model is opened
  *     (sp_run_open, which re-reads and hashes the fit records), executed
- *     with the recorded method, seed, sample count, block size and options
- *     and with keep_samples, and every recorded result (each statistic,
- *     percentile, histogram count, sensitivity and exceedance figure) must
- *     come out bit for bit the same; otherwise nothing is written and the
- *     error names the first figure that differs.  The charts are then drawn
- *     from the repeated run (runplot.h) in a temporary folder, embedded and
- *     removed;
+ *     with the recorded options and with keep_samples, and its record is
+ *     compared with the recorded one by the rules of the replay module
+ *     (replay.h: every result, bit for bit when the record names this
+ *     build, within SP_REPLAY_DEFAULT_TOLERANCE when it names another);
+ *     on a difference nothing is written and the error names the first
+ *     figure that differs.  The charts are then drawn from the repeated
+ *     run (runplot.h) in a temporary folder, embedded and removed;
  *   - with plots_dir, the SVGs that "propagate --plots DIR" drew are
  *     embedded instead and the run is not repeated (for runs too large to
  *     keep their samples in memory).  Each histogram's data file there is
  *     compared with the record's counts, so charts of another run are
  *     refused; the other charts are taken as they are, which the report
  *     says.
- * Fit charts are always drawn afresh from the re-read data.
+ * Fit charts are always drawn afresh from the re-read data (fitplot.h).
+ * Files named in the records are found as the replay module finds them
+ * (an archive's own copies; else the folder the record was made in; else
+ * the current folder).
  *
  * All functions borrow their arguments; none retains anything. */
 #ifndef SP_REPORTGEN_H
@@ -95,7 +98,8 @@ typedef struct {
  *              number of values; the charts in plots_dir are of another
  *              run;
  *  SP_EDIFFERS the repeated run does not reproduce the record (the message
- *              names the first figure and both values);
+ *              names the first figure and both values, the hint how to
+ *              list them all);
  *  SP_EMODEL   the recorded model no longer compiles;
  *  SP_ENOMEM   out of memory, or the repeated run would not fit in memory
  *              (the hint suggests plots_dir);

@@ -54,6 +54,8 @@ int cli_fit_run(int argc, char **argv);
 void cli_fit_help(FILE *out);
 int cli_report_run(int argc, char **argv);
 void cli_report_help(FILE *out);
+int cli_replay_run(int argc, char **argv);
+void cli_replay_help(FILE *out);
 int cli_plot_run(int argc, char **argv);
 void cli_plot_help(FILE *out);
 

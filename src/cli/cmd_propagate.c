@@ -11,6 +11,7 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "scatterprop/archive.h"
 #include "scatterprop/run.h"
 #include "scatterprop/runplot.h"
 
@@ -21,6 +22,7 @@ void cli_propagate_help(FILE *out)
           "         [--method mc|lhs|sobol] [--seed S] [--threads K] [--out DIR] [--force]\n"
           "         [--json] [--keep-samples] [--sobol N] [--percentiles LIST]\n"
           "         [--coverage P] [--bins N] [--plots DIR] [--dump-bytecode]\n"
+          "         [--archive DIR]\n"
           "\n"
           "Propagates the model's inputs (fitted records or stated distributions) through\n"
           "its formulas, and prints for every output: mean with its Monte Carlo standard\n"
@@ -38,7 +40,10 @@ void cli_propagate_help(FILE *out)
           "  --seed S           seed of the random streams (default 1)\n"
           "  --threads K        threads (default: all cores); results do not depend on K\n"
           "  --out DIR          write run.json and the percentile and histogram tables\n"
-          "  --force            allow --out to replace existing files\n"
+          "  --force            allow --out (and --archive) to replace existing files\n"
+          "  --archive DIR      also copy the model, its fit records, their data and the run\n"
+          "                     record into the folder DIR, self-contained\n"
+          "                     ('scatterprop replay DIR/run.json' works wherever it is moved)\n"
           "  --json             print the run record instead of the tables\n"
           "  --keep-samples     with --out, also write every sample (NAME.samples.csv)\n"
           "  --sobol N          also first-order and total Sobol' indices from N base\n"
@@ -266,7 +271,7 @@ static int mkdir_p(const char *dir, sp_error *err)
 
 int cli_propagate_run(int argc, char **argv)
 {
-  const char *model = NULL, *outdir = NULL, *plotdir = NULL;
+  const char *model = NULL, *outdir = NULL, *plotdir = NULL, *archive = NULL;
   int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0;
   double *pcts = NULL;
   size_t npcts = 0;
@@ -324,6 +329,8 @@ int cli_propagate_run(int argc, char **argv)
       }
     } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--plots", &v, &rc)) != 0) {
       if (m > 0) plotdir = v;
+    } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--archive", &v, &rc)) != 0) {
+      if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--json")) {
       json = 1;
     } else if (cli_opt_flag(argv, i, "--force")) {
@@ -425,6 +432,8 @@ int cli_propagate_run(int argc, char **argv)
   sp_runplot_set plots;
   memset(&plots, 0, sizeof plots);
   if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
+  if (rc == CLI_OK && archive && sp_archive_run(archive, record, NULL, 0, force, &err) != SP_OK)
+    rc = cli_report(&err);
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
@@ -456,6 +465,7 @@ int cli_propagate_run(int argc, char **argv)
       print_limits(stdout, run);
       if (outdir) printf("\nrun record and tables written to %s/\n", outdir);
       if (plotdir) print_plots(stdout, &plots, plotdir);
+      if (archive) printf("archive written to %s/\n", archive);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
       cli_print_caution(stdout);

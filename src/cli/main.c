@@ -17,6 +17,7 @@ static const cli_command commands[] = {
   {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
   {"report", "one self-contained HTML report of a run, its fits and its data",
    cli_report_run, cli_report_help},
+  {"replay", "rerun a fit or run record and compare with what it recorded", cli_replay_run, cli_replay_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
