@@ -653,6 +653,19 @@ static void dir_of(const char *path, char *buf, size_t n)
   else snprintf(buf, n, "%.*s", (int)(slash - path), path);
 }
 
+/* path as shown in the report: relative to the current folder when it
+ * lies below it (a path found through the folder a record was made in is
+ * absolute), else as it is. */
+static const char *shown_path(pool *p, const char *path)
+{
+  char cwd[SP_PLOT_PATH_MAX];
+  if (!getcwd(cwd, sizeof cwd)) return path;
+  size_t n = strlen(cwd);
+  if (n > 1 && strncmp(path, cwd, n) == 0 && path[n] == '/' && path[n + 1] != '\0')
+    return pool_str(p, path + n + 1);
+  return path;
+}
+
 /* Removes the files of a folder this module made, then the folder. */
 static void remove_tree(const char *dir)
 {
@@ -1128,7 +1141,7 @@ static void section_data(builder *b, const fitsrc *fits, size_t nf)
     const sp_summary_block *blk = &f->summary->blocks[0];
     add_section(b, 2, pool_fmt(&b->p, "%s%s%s%s in %s", f->col->name, f->col->unit_text ? " [" : "",
                                f->col->unit_text ? f->col->unit_text : "",
-                               f->col->unit_text ? "]" : "", f->data_path));
+                               f->col->unit_text ? "]" : "", shown_path(&b->p, f->data_path)));
     const json_t *meta = json_object_get(json_object_get(f->root, "data"), "metadata");
     size_t nm = json_array_size(meta);
     if (nm > 0) {
@@ -1612,9 +1625,11 @@ static void provenance(builder *b, const json_t *root, const char *record, const
   add_input(b, "run record", record, rsha, rsize);
   add_input(b, "model", gstr(model, "path"), gstr(model, "sha256"),
             (uint64_t)strlen(gstr(model, "text")));
-  for (size_t k = 0; k < nf; k++) add_input(b, "fit record", fits[k].path, fits[k].sha, fits[k].size);
   for (size_t k = 0; k < nf; k++)
-    add_input(b, "data", fits[k].data_path, fits[k].data_sha, fits[k].table->size);
+    add_input(b, "fit record", shown_path(&b->p, fits[k].path), fits[k].sha, fits[k].size);
+  for (size_t k = 0; k < nf; k++)
+    add_input(b, "data", shown_path(&b->p, fits[k].data_path), fits[k].data_sha,
+              fits[k].table->size);
   add_setting(b, "run record created", gstr(root, "created_utc"));
   char buf[1024];
   snprintf(buf, sizeof buf, "scatterprop %s (revision %s, %s, GSL %s, %s)",
