@@ -237,6 +237,26 @@ static int draw_plots(const sp_run *run, const char *dir, int force, sp_runplot_
   return sp_runplot_draw(run, &po, set, &err) == SP_OK ? CLI_OK : cli_report(&err);
 }
 
+/* Archives the run with its charts (data, script and pictures of each). */
+static sp_status archive_run(const char *dir, const char *record, const sp_runplot_set *set,
+                             int force, sp_error *err)
+{
+  sp_archive_extra *ex = calloc(4 * set->ncharts + 1, sizeof *ex);
+  if (!ex) return sp_fail(err, SP_ENOMEM, "out of memory");
+  size_t n = 0;
+  for (size_t i = 0; i < set->ncharts; i++) {
+    const sp_runplot_chart *c = &set->charts[i];
+    if (!c->drawn) continue;
+    const char *files[4] = {c->out.data, c->out.script, c->out.rendered ? c->out.png : "",
+                            c->out.rendered ? c->out.svg : ""};
+    for (int k = 0; k < 4; k++)
+      if (files[k][0]) ex[n++] = (sp_archive_extra){files[k], "charts"};
+  }
+  sp_status s = sp_archive_run(dir, record, ex, n, force, err);
+  free(ex);
+  return s;
+}
+
 /* Says where the charts are, and the hint when gnuplot was not found. */
 static void print_plots(FILE *out, const sp_runplot_set *set, const char *dir)
 {
@@ -272,7 +292,7 @@ static int mkdir_p(const char *dir, sp_error *err)
 int cli_propagate_run(int argc, char **argv)
 {
   const char *model = NULL, *outdir = NULL, *plotdir = NULL, *archive = NULL;
-  int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0;
+  int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0, keep_samples = 0;
   double *pcts = NULL;
   size_t npcts = 0;
   sp_run_options ro;
@@ -336,7 +356,7 @@ int cli_propagate_run(int argc, char **argv)
     } else if (cli_opt_flag(argv, i, "--force")) {
       force = 1;
     } else if (cli_opt_flag(argv, i, "--keep-samples")) {
-      ro.engine.keep_samples = 1;
+      keep_samples = 1;
     } else if (cli_opt_flag(argv, i, "--dump-bytecode")) {
       dump = 1;
     } else if (argv[i][0] == '-' && argv[i][1] != '\0') {
@@ -350,12 +370,27 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK && !model) rc = cli_usage("propagate", "no model file given");
   if (rc == CLI_OK && have_samples && ro.engine.adaptive_digits)
     rc = cli_usage("propagate", "give --samples or --tolerance, not both");
-  if (rc == CLI_OK && ro.engine.keep_samples && !outdir)
+  if (rc == CLI_OK && keep_samples && !outdir)
     rc = cli_usage("propagate", "--keep-samples needs --out DIR");
   if (rc != CLI_OK) { free(pcts); return rc; }
   ro.engine.percentiles = pcts;
   ro.engine.npercentiles = npcts;
-  if (plotdir) ro.engine.keep_samples = 1; /* the charts need every sample */
+  /* The charts need every sample too; only --keep-samples writes them out. */
+  ro.engine.keep_samples = keep_samples || plotdir != NULL;
+  /* Refuse an existing record before the run, not after it. */
+  if (outdir && !force) {
+    char rp[4096];
+    struct stat rst;
+    snprintf(rp, sizeof rp, "%s/run.json", outdir);
+    if (stat(rp, &rst) == 0) {
+      sp_error e;
+      sp_error_clear(&e);
+      sp_fail(&e, SP_EIO, "%s: file exists; refusing to overwrite it", rp);
+      sp_error_hint(&e, "give --force to replace the run's files, or choose another --out");
+      free(pcts);
+      return cli_report(&e);
+    }
+  }
 
   sp_error err;
   sp_error_clear(&err);
@@ -425,14 +460,14 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK && outdir) {
     char path[4096];
     snprintf(path, sizeof path, "%s/run.json", outdir);
-    if (sp_run_write_tables(run, outdir, force, &err) != SP_OK ||
+    if (sp_run_write_tables(run, outdir, keep_samples, force, &err) != SP_OK ||
         sp_file_write_atomic(path, record, strlen(record), force, &err) != SP_OK)
       rc = cli_report(&err);
   }
   sp_runplot_set plots;
   memset(&plots, 0, sizeof plots);
   if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
-  if (rc == CLI_OK && archive && sp_archive_run(archive, record, NULL, 0, force, &err) != SP_OK)
+  if (rc == CLI_OK && archive && archive_run(archive, record, &plots, force, &err) != SP_OK)
     rc = cli_report(&err);
   if (rc == CLI_OK) {
     if (json) {
