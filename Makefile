@@ -6,7 +6,7 @@ CMAKE_FLAGS ?=
 MAKEFLAGS += --no-print-directory
 JOBS ?= $(shell nproc 2>/dev/null || echo 2)
 
-.PHONY: all deps configure build demo test clean sanitize bench-ingest
+.PHONY: all deps configure build demo test clean sanitize bench-ingest bench-engine
 
 all: build
 
@@ -36,6 +36,12 @@ bench-ingest: build
 	@mkdir -p $(BENCH_DIR)
 	@test -f $(BENCH_DIR)/ingest-10M.csv || $(BUILD)/tests/bench_ingest --generate $(BENCH_DIR)/ingest-10M.csv 10000000
 	@$(BUILD)/tests/bench_ingest $(BENCH_DIR)/ingest-10M.csv
+
+# Engine on the spring model, 10^7 samples, 1 and 2 threads, against a
+# scalar C loop and numpy (tests/bench/bench_engine.py; Debian's python3).
+BENCH_ENGINE_N ?= 10000000
+bench-engine: build
+	@/usr/bin/python3 tests/bench/bench_engine.py $(BUILD)/tests/bench_engine $(BENCH_ENGINE_N)
 
 clean:
 	rm -rf $(BUILD) build-sanitize demo-out

@@ -1320,40 +1320,203 @@ START_TEST(test_sampler_pinned)
 {
   /* First three draws at block stream (seed 20240601, block 7, sub 3).
    * These values are pinned from this implementation (no outside source):
-   * they catch any change in the stream or in the samplers' use of it. */
+   * they catch any change in the stream or in the samplers' use of it.
+   * The normal's are the ziggurat draws pinned (and derived by hand from
+   * the stream's outputs) in check_rng.c.  The streams of normal, weibull
+   * and gamma (among others) changed when the samplers moved from
+   * inversion to ziggurat draws. */
   sp_pcg64 g;
   double out[3];
   const double n01[2] = {0, 1}, w[2] = {1.5, 2.0}, ga[2] = {2.5, 1.5};
   sp_rng_block_stream(&g, 20240601u, 7u, 3u);
   fam("normal")->sample(n01, &g, out, 3);
-  ck_assert_double_eq(out[0], -0.81256374550815524);
-  ck_assert_double_eq(out[1], 1.7800186858854987);
-  ck_assert_double_eq(out[2], -1.1116518659925338);
+  ck_assert_double_eq(out[0], 0.38773558333298319);
+  ck_assert_double_eq(out[1], 1.2450300397411405);
+  ck_assert_double_eq(out[2], -0.27477812498919446);
   sp_rng_block_stream(&g, 20240601u, 7u, 3u);
   fam("weibull")->sample(w, &g, out, 3);
-  ck_assert_double_eq(out[0], 0.7583591532636359);
-  ck_assert_double_eq(out[1], 4.4173462114839204);
-  ck_assert_double_eq(out[2], 0.54661599846907383);
+  ck_assert_double_eq(out[0], 1.2326819030763769);
+  ck_assert_double_eq(out[1], 2.2640581819452454);
+  ck_assert_double_eq(out[2], 1.0304199676105503);
   sp_rng_block_stream(&g, 20240601u, 7u, 3u);
   fam("gamma")->sample(ga, &g, out, 3);
-  ck_assert_double_eq(out[0], 1.7657887392693721);
-  ck_assert_double_eq(out[1], 1.3615753766751129);
-  ck_assert_double_eq(out[2], 3.6640791060823616);
+  ck_assert_double_eq(out[0], 4.1834665088676735);
+  ck_assert_double_eq(out[1], 2.6802748070697415);
+  ck_assert_double_eq(out[2], 2.1261155234962796);
 
   /* Inversion samplers use one output per draw: a block of n draws equals
-   * the quantiles of the stream's first n open uniforms, and drawing in two
-   * calls gives the same values as one. */
-  double u[5], a[5], b[5];
-  sp_rng_block_stream(&g, 99u, 0u, 0u);
-  sp_rng_fill_open(&g, u, 5);
-  sp_rng_block_stream(&g, 99u, 0u, 0u);
-  fam("weibull")->sample(w, &g, a, 5);
-  sp_family_from_uniform(fam("weibull"), w, u, b, 5);
-  for (int i = 0; i < 5; i++) ck_assert_double_eq(a[i], b[i]);
-  sp_rng_block_stream(&g, 99u, 0u, 0u);
-  fam("weibull")->sample(w, &g, b, 2);
-  fam("weibull")->sample(w, &g, b + 2, 3);
-  for (int i = 0; i < 5; i++) ck_assert_double_eq(a[i], b[i]);
+   * the quantiles of the stream's first n open uniforms (uniform's own
+   * sampler and triangular's generic one), and drawing in two calls gives
+   * the same values as one. */
+  const char *inv[2] = {"uniform", "triangular"};
+  const double tu[3] = {-1.0, 3.0, 0.0}, tt[3] = {0.0, 1.0, 4.0};
+  for (int k = 0; k < 2; k++) {
+    const sp_family *f = fam(inv[k]);
+    const double *t = k ? tt : tu;
+    double u[5], a[5], b[5];
+    sp_rng_block_stream(&g, 99u, 0u, 0u);
+    sp_rng_fill_open(&g, u, 5);
+    sp_rng_block_stream(&g, 99u, 0u, 0u);
+    f->sample(t, &g, a, 5);
+    sp_family_from_uniform(f, t, u, b, 5);
+    for (int i = 0; i < 5; i++) ck_assert_double_eq(a[i], b[i]);
+    sp_rng_block_stream(&g, 99u, 0u, 0u);
+    f->sample(t, &g, b, 2);
+    f->sample(t, &g, b + 2, 3);
+    for (int i = 0; i < 5; i++) ck_assert_double_eq(a[i], b[i]);
+  }
+}
+END_TEST
+
+START_TEST(test_sampler_methods)
+{
+  /* Each sampler is the method its comment names, checked draw by draw on
+   * one block stream: mean + sd z and exp(meanlog + sdlog z) for ziggurat
+   * normals z; scale E^(1/shape), loc + that, E / rate, loc + E / rate,
+   * loc -+ scale log E for ziggurat exponentials E (bit for bit: the same
+   * operations).  The inversion samplers against the quantile functions
+   * (sp_family_from_uniform) of the same open uniforms: logistic to 8 ulps
+   * of |loc| + scale |z| (both forms of logit are within 2 ulps), and
+   * loglogistic, whose pow of u/(1 - u) and exp of logit / shape differ by
+   * a few ulps times 1 + |log(x / scale)| / shape, to 16 ulps of that. */
+  enum { N = 3000 };
+  static double ref[N], got[N], u[N];
+  sp_pcg64 g;
+  const double tn[2] = {1.5, 2.5}, tl[2] = {0.5, 0.75}, tw[2] = {1.7, 3.2},
+               tw3[3] = {2.2, 3.0, 10.0}, te[1] = {0.4}, te2[2] = {2.0, 5.0},
+               tg[2] = {1.0, 2.0}, tlg[2] = {0.5, 1.5}, tll[2] = {5.0, 2.0};
+  struct {
+    const char *name;
+    const double *t;
+  } zig[] = {{"normal", tn},      {"lognormal", tl},     {"weibull", tw},
+             {"weibull3", tw3},   {"exponential", te},   {"exponential2", te2},
+             {"gumbel_max", tg},  {"gumbel_min", tg}};
+  for (size_t k = 0; k < sizeof zig / sizeof zig[0]; k++) {
+    const double *t = zig[k].t;
+    const int normal = k < 2;
+    sp_rng_block_stream(&g, 4242u, k, 0u);
+    (normal ? sp_rng_fill_normal : sp_rng_fill_exponential)(&g, ref, N);
+    for (int i = 0; i < N; i++) {
+      const double z = ref[i];
+      switch (k) {
+      case 0: ref[i] = t[0] + t[1] * z; break;
+      case 1: ref[i] = exp(t[0] + t[1] * z); break;
+      case 2: ref[i] = t[1] * pow(z, 1.0 / t[0]); break;
+      case 3: ref[i] = t[2] + t[1] * pow(z, 1.0 / t[0]); break;
+      case 4: ref[i] = z / t[0]; break;
+      case 5: ref[i] = t[1] + z / t[0]; break;
+      case 6: ref[i] = t[0] - t[1] * log(z); break;
+      default: ref[i] = t[0] + t[1] * log(z); break;
+      }
+    }
+    sp_rng_block_stream(&g, 4242u, k, 0u);
+    fam(zig[k].name)->sample(t, &g, got, N);
+    for (int i = 0; i < N; i++)
+      ck_assert_msg(got[i] == ref[i], "%s draw %d: %.17g, want %.17g", zig[k].name, i, got[i],
+                    ref[i]);
+  }
+  for (int k = 0; k < 2; k++) {
+    const sp_family *f = fam(k ? "loglogistic" : "logistic");
+    const double *t = k ? tll : tlg;
+    sp_rng_block_stream(&g, 4243u, (uint64_t)k, 0u);
+    sp_rng_fill_open(&g, u, N);
+    sp_family_from_uniform(f, t, u, ref, N);
+    sp_rng_block_stream(&g, 4243u, (uint64_t)k, 0u);
+    f->sample(t, &g, got, N);
+    for (int i = 0; i < N; i++) {
+      double tol = k ? 16 * EPS * fabs(ref[i]) * (1.0 + fabs(log(ref[i] / t[1])) / t[0])
+                     : 8 * EPS * (fabs(t[0]) + fabs(ref[i] - t[0]));
+      ck_assert_msg(fabs(got[i] - ref[i]) <= tol, "%s draw %d (u = %.17g): %.17g, want %.17g",
+                    f->name, i, u[i], got[i], ref[i]);
+    }
+  }
+}
+END_TEST
+
+/* Parameter sets for the sampler tests below: every sampler's methods
+ * (truncnormal by rejection, Z >= 1/16, and by inversion; gamma and beta
+ * both sides of shape 1), each with finite moments up to order 8, so that
+ * the sample fourth moment estimates the variance's standard error. */
+static const struct {
+  const char *name;
+  double t[4];
+} sampler_sets[] = {
+  {"normal", {1.5, 2.5}},          {"normal", {79300.0, 900.0}},
+  {"lognormal", {0.5, 0.75}},      {"weibull", {1.7, 3.2}},
+  {"weibull", {0.5, 2.0}},         {"weibull", {8.0, 120.0}},
+  {"weibull3", {2.2, 3, 10}},      {"exponential", {0.4}},
+  {"exponential2", {2, 5}},        {"gumbel_max", {1, 2}},
+  {"gumbel_min", {-2, 0.5}},       {"logistic", {0.5, 1.5}},
+  {"loglogistic", {10, 2}},        {"uniform", {-1, 3}},
+  {"truncnormal", {1, 2, -1, 4}},  {"truncnormal", {0, 1, -0.2, 0.3}},
+  {"truncnormal", {0, 1, 1.5, INFINITY}}, {"truncnormal", {0, 1, 1.6, INFINITY}},
+  {"truncnormal", {0, 1, -INFINITY, -3}}, {"gamma", {2.5, 1.5}},
+  {"gamma", {0.3, 2.0}},           {"beta", {2, 3, 0, 1}},
+  {"beta", {0.5, 0.5, -1, 2}},
+};
+
+START_TEST(test_sampler_split)
+{
+  /* One call of 1000 draws equals calls of 377 and 623 on the same stream,
+   * and leaves the generator in the same state: the rejection samplers
+   * (ziggurat, truncnormal, gamma, beta) consume the stream exactly as far
+   * as their draws need, whatever the block boundaries. */
+  enum { N = 1000, A = 377 };
+  static double a[N], b[N];
+  for (size_t k = 0; k < sizeof sampler_sets / sizeof sampler_sets[0]; k++) {
+    const sp_family *f = fam(sampler_sets[k].name);
+    const double *t = sampler_sets[k].t;
+    sp_pcg64 g, h;
+    sp_rng_block_stream(&g, 777u, k, 1u);
+    h = g;
+    f->sample(t, &g, a, N);
+    f->sample(t, &h, b, A);
+    f->sample(t, &h, b + A, N - A);
+    for (int i = 0; i < N; i++)
+      ck_assert_msg(a[i] == b[i], "%s set %zu draw %d: %.17g vs %.17g", f->name, k, i, a[i], b[i]);
+    ck_assert_msg(g.state == h.state, "%s set %zu: different final states", f->name, k);
+  }
+}
+END_TEST
+
+START_TEST(test_samplers_large)
+{
+  /* 10^5 draws per set against the exact law, every bound at 5 sigma:
+   * Kolmogorov-Smirnov sqrt(n) D <= 2.75 (as test_samplers); the mean
+   * within 5 sqrt(var / n); the sample variance (n denominator, about the
+   * true mean) within 5 sqrt((m4 - var^2) / n), m4 the sample fourth
+   * central moment (the variance of a mean of (x - mu)^2).  Each set has
+   * finite moments to order 8, so m4 itself is a consistent estimate. */
+  enum { N = 100000 };
+  static double y[N];
+  for (size_t k = 0; k < sizeof sampler_sets / sizeof sampler_sets[0]; k++) {
+    const sp_family *f = fam(sampler_sets[k].name);
+    const double *t = sampler_sets[k].t;
+    sp_pcg64 g;
+    sp_rng_block_stream(&g, 987654u, k, 2u);
+    f->sample(t, &g, y, N);
+    const double mu = f->mean(t), var = f->variance(t);
+    double lo, hi, s1 = 0.0, s2 = 0.0, s4 = 0.0;
+    f->support(t, &lo, &hi);
+    long outside = 0;
+    for (int i = 0; i < N; i++) {
+      outside += !(y[i] >= lo && y[i] <= hi);
+      const double d = y[i] - mu, d2 = d * d;
+      s1 += d;
+      s2 += d2;
+      s4 += d2 * d2;
+    }
+    ck_assert_msg(outside == 0, "%s set %zu: %ld draws outside the support", f->name, k, outside);
+    const double m2 = s2 / N, m4 = s4 / N;
+    ck_assert_msg(fabs(s1 / N) <= 5.0 * sqrt(var / N), "%s set %zu: mean off by %.3g (se %.3g)",
+                  f->name, k, s1 / N, sqrt(var / N));
+    ck_assert_msg(fabs(m2 - var) <= 5.0 * sqrt((m4 - var * var) / N),
+                  "%s set %zu: variance %.10g, want %.10g (se %.3g)", f->name, k, m2, var,
+                  sqrt((m4 - var * var) / N));
+    double d = ks_distance(f, t, y, N);
+    ck_assert_msg(sqrt((double)N) * d <= 2.75, "%s set %zu: sqrt(n) D = %.4f", f->name, k,
+                  sqrt((double)N) * d);
+  }
 }
 END_TEST
 
@@ -1799,12 +1962,20 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_moments);
   tcase_add_test(tc, test_samplers);
   tcase_add_test(tc, test_sampler_pinned);
+  tcase_add_test(tc, test_sampler_methods);
+  tcase_add_test(tc, test_sampler_split);
   tcase_add_test(tc, test_from_uniform_and_loglik);
   tcase_add_test(tc, test_fit_mle_closed_forms);
   tcase_add_test(tc, test_fit_mle_iterative);
   tcase_add_test(tc, test_weibull_mle_large_and_wide);
   tcase_add_test(tc, test_fit_start);
   tcase_add_test(tc, test_fit_errors);
+  suite_add_tcase(s, tc);
+  /* 23 sets of 10^5 draws with their CDFs: about 0.5 s in a release build,
+   * 1 s of CPU under the sanitizers (Debug). */
+  tc = tcase_create("samplers-large");
+  tcase_set_timeout(tc, 120);
+  tcase_add_test(tc, test_samplers_large);
   suite_add_tcase(s, tc);
   return s;
 }

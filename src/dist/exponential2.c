@@ -63,9 +63,12 @@ static double quantile_Q(const double *t, double q)
   return t[LOC] - log(q) / t[RATE];
 }
 
+/* location + ziggurat exponentials (sp_rng_fill_exponential) / rate. */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  sp_dist_sample_by_quantile(quantile_P, quantile_Q, t, g, out, n);
+  sp_rng_fill_exponential(g, out, n);
+  const double loc = t[LOC], rate = t[RATE];
+  for (size_t i = 0; i < n; i++) out[i] = loc + out[i] / rate;
 }
 
 static double mean(const double *t) { return t[LOC] + 1.0 / t[RATE]; }

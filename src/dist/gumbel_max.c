@@ -70,9 +70,15 @@ static double quantile_Q(const double *t, double q)
   return t[LOC] - t[SCALE] * log(-log1p(-q));
 }
 
+/* location - scale log E for standard exponential E from the ziggurat
+ * (sp_rng_fill_exponential): P(-log E <= x) = P(E >= exp(-x)) =
+ * exp(-exp(-x)).  One log per draw instead of inversion's two; E > 0, so
+ * the log is finite. */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  sp_dist_sample_by_quantile(quantile_P, quantile_Q, t, g, out, n);
+  sp_rng_fill_exponential(g, out, n);
+  const double loc = t[LOC], s = t[SCALE];
+  for (size_t i = 0; i < n; i++) out[i] = loc - s * log(out[i]);
 }
 
 static double mean(const double *t) { return t[LOC] + SP_DIST_EULER * t[SCALE]; }

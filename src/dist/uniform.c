@@ -2,6 +2,8 @@
  * Each tail and quantile is measured from its own end, so P near 0 and Q
  * near 0 keep their digits.  Maximum likelihood: min(x) and max(x). */
 #include <math.h>
+#include <stdint.h>
+#include <string.h>
 
 #include "dist/dist_common.h"
 
@@ -65,9 +67,33 @@ static double quantile_Q(const double *t, double q)
   return q <= 0.5 ? t[MAX] - q * w : t[MIN] + (1.0 - q) * w;
 }
 
+/* a if take_a, else b, through a bit mask: GCC does not turn a choice
+ * between doubles into a conditional move, and a branch on a random
+ * condition is mispredicted half the time. */
+static double choose(int take_a, double a, double b)
+{
+  uint64_t ba, bb;
+  memcpy(&ba, &a, sizeof ba);
+  memcpy(&bb, &b, sizeof bb);
+  const uint64_t m = (uint64_t)0 - (uint64_t)(take_a != 0);
+  const uint64_t r = (ba & m) | (bb & ~m);
+  double x;
+  memcpy(&x, &r, sizeof x);
+  return x;
+}
+
+/* Inversion of open uniforms u from the nearer end, min + u w for u <= 1/2
+ * and max - (1 - u) w above (as quantile_P; 1 - u is exact), both
+ * candidates computed and one chosen without a branch (measured 2.3 ns per
+ * value against 8.3 ns through sp_dist_sample_by_quantile). */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  sp_dist_sample_by_quantile(quantile_P, quantile_Q, t, g, out, n);
+  sp_rng_fill_open(g, out, n);
+  const double lo = t[MIN], hi = t[MAX], w = hi - lo;
+  for (size_t i = 0; i < n; i++) {
+    const double u = out[i];
+    out[i] = choose(u <= 0.5, lo + u * w, hi - (1.0 - u) * w);
+  }
 }
 
 static double mean(const double *t) { return 0.5 * t[MIN] + 0.5 * t[MAX]; }

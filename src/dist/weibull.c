@@ -105,9 +105,16 @@ static double quantile_Q(const double *t, double q)
   return t[SCALE] * pow(-log(q), 1.0 / t[SHAPE]);
 }
 
+/* scale E^(1/shape) for standard exponential E from the ziggurat
+ * (sp_rng_fill_exponential): if E is exponential, P(scale E^(1/k) > x) =
+ * P(E > (x/scale)^k) = exp(-(x/scale)^k).  One pow per draw instead of
+ * inversion's log and pow, and no branch on the uniform; E carries no
+ * rounding of its own, so the draw has only pow's. */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  sp_dist_sample_by_quantile(quantile_P, quantile_Q, t, g, out, n);
+  sp_rng_fill_exponential(g, out, n);
+  const double inv_k = 1.0 / t[SHAPE], s = t[SCALE];
+  for (size_t i = 0; i < n; i++) out[i] = s * pow(out[i], inv_k);
 }
 
 /* scale * Gamma(1 + 1/k), through lgamma when Gamma would overflow. */

@@ -54,9 +54,13 @@ static double quantile_Q(const double *t, double q)
   return t[LOC] + sp_dist_weibull.quantile_Q(t, q);
 }
 
+/* location + the two-parameter Weibull draw (its sampler reads shape and
+ * scale, the first two parameters). */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
-  sp_dist_sample_by_quantile(quantile_P, quantile_Q, t, g, out, n);
+  sp_dist_weibull.sample(t, g, out, n);
+  const double loc = t[LOC];
+  for (size_t i = 0; i < n; i++) out[i] = loc + out[i];
 }
 
 static double mean(const double *t) { return t[LOC] + sp_dist_weibull.mean(t); }
