@@ -86,7 +86,8 @@ static double quantile_Q(const double *t, double q)
 
 /* Inversion, scale (u / (1 - u))^(1/shape), of open uniforms u (u and
  * 1 - u exact, so no choice of tail is needed); the ratio's rounding, half
- * an ulp, becomes 1/(2 shape) ulp of the draw. */
+ * an ulp, becomes 1/(2 shape) ulp of the draw.  (exp(logit(u) / shape) was
+ * 20% faster, but its error grows with |logit| / shape.) */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
   sp_rng_fill_open(g, out, n);

