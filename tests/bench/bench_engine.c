@@ -16,8 +16,8 @@
  *    and on 2 threads: moments, 15 percentiles, both 95% intervals and a
  *    histogram per output;
  *  - a straightforward scalar C loop of the same model with the same
- *    generators (the engine's block streams, one uniform per input per
- *    sample, the families' quantile functions), Welford's running mean and
+ *    generators (the engine's block streams and the families' samplers,
+ *    a block of each input at a time), Welford's running mean and
  *    variance, and the same percentile method (sp_quantile_select, once per
  *    percentile).  Its draws equal the engine's, so its percentiles must be
  *    identical: the benchmark checks that.
@@ -70,27 +70,32 @@ typedef struct {
   double mean[2], sd[2], pct[2][15];
 } scalar_result;
 
-/* The scalar reference: per sample, one open uniform from each input's block
- * stream, the quantile (upper tail for u > 1/2, as the families' samplers
- * do), the model, Welford's update; then sp_quantile_select per
- * percentile. */
+/* The scalar reference: each input's block from its family's sampler on
+ * the block stream (as the engine's mc method), then per sample the model
+ * and Welford's update; then sp_quantile_select per percentile. */
 static void scalar_loop(const sp_engine_input *in, uint64_t n, size_t block,
                         const double *p, size_t np, double *y0, double *y1,
                         scalar_result *res)
 {
   double mean[2] = {0, 0}, m2[2] = {0, 0};
   uint64_t k = 0;
+  /* Each input's block is drawn by its family's sampler, as the engine's mc
+   * method does; then the model runs one sample at a time. */
+  double *draws = malloc(4 * block * sizeof *draws);
+  if (!draws) {
+    fprintf(stderr, "bench_engine: out of memory\n");
+    exit(1);
+  }
   for (uint64_t b = 0; b * block < n; b++) {
     sp_pcg64 g[4];
-    for (uint32_t i = 0; i < 4; i++) sp_rng_block_stream(&g[i], SEED, b, i);
     uint64_t end = (b + 1) * block < n ? (b + 1) * block : n;
-    for (; k < end; k++) {
+    for (uint32_t i = 0; i < 4; i++) {
+      sp_rng_block_stream(&g[i], SEED, b, i);
+      in[i].fam->sample(in[i].theta, &g[i], draws + i * block, (size_t)(end - k));
+    }
+    for (uint64_t k0 = k; k < end; k++) {
       double x[4];
-      for (int i = 0; i < 4; i++) {
-        double u = sp_rng_uniform_open(&g[i]);
-        x[i] = u > 0.5 ? in[i].fam->quantile_Q(in[i].theta, 1.0 - u)
-                       : in[i].fam->quantile_P(in[i].theta, u);
-      }
+      for (int i = 0; i < 4; i++) x[i] = draws[i * block + (k - k0)];
       double y[2];
       spring(x[0], x[1], x[2], x[3], &y[0], &y[1]);
       y0[k] = y[0];
@@ -102,6 +107,7 @@ static void scalar_loop(const sp_engine_input *in, uint64_t n, size_t block,
       }
     }
   }
+  free(draws);
   for (int o = 0; o < 2; o++) {
     res->mean[o] = mean[o];
     res->sd[o] = sqrt(m2[o] / (double)(n - 1));
