@@ -1783,6 +1783,54 @@ START_TEST(test_fit_errors)
 }
 END_TEST
 
+/* ---- extreme parameters (regressions) ------------------------------------ */
+
+START_TEST(test_gamma_large_shape)
+{
+  /* GSL 2.7's gsl_sf_gamma_inc_Q gave Q(1e8, 1e8 + 1e4) = 0.092 (its
+   * large-x series without convergence), so quantile_P(0.9) of
+   * gamma(1e8, 1) came back at the mean plus one sd.  References: mpmath
+   * 1.2.1 at 60 (150 for the 1e-89 tails) digits, P(a, x) =
+   * exp(a log x - x - loggamma(a + 1)) hyp1f1(1, a + 1, x), Q = 1 - P.
+   * Tolerance 1e-12: the measured error of the uniform expansion is below
+   * 1e-13 there (see gamma.c). */
+  const sp_family *f = fam("gamma");
+  const double t[2] = {1e8, 1.0};
+  ASSERT_REL(f->cdf_Q(t, 1e8 + 1e4), 0.15865525352820118643, 1e-12);
+  ASSERT_REL(f->cdf_P(t, 1e8 - 1e4), 0.15865525352814383041, 1e-12);
+  ASSERT_REL(f->cdf_Q(t, 1e8 + 2e5), 3.5936926217787997916e-89, 1e-12);
+  ASSERT_REL(f->cdf_P(t, 1e8 - 2e5), 2.1082443672341443934e-89, 1e-12);
+  /* GSL's P series stopped short here (5.8e-8 off) */
+  const double t2[2] = {5e4, 1.0};
+  ASSERT_REL(f->cdf_P(t2, 49776.39320225002), 0.15865444478879534787, 1e-12);
+  /* Quantiles come back to their probabilities at shapes up to the cap,
+   * within the solver's tolerance on log x (2 DBL_EPSILON |log x|, a
+   * relative error in x that moves P by the density times x times it;
+   * doubled), plus 1e-12 relatively for the tails themselves. */
+  const double shapes[] = {1e5, 1e8, 1e12, 1e16, 1e20};
+  const double ps[] = {1e-10, 0.1, 0.5, 0.9, 1.0 - 1e-10};
+  for (size_t i = 0; i < sizeof shapes / sizeof shapes[0]; i++) {
+    const double ta[2] = {shapes[i], 2.0};
+    for (size_t k = 0; k < sizeof ps / sizeof ps[0]; k++) {
+      double p = ps[k], q = 1.0 - p;
+      double x = f->quantile_P(ta, p), y = f->quantile_Q(ta, q);
+      double tx = 4 * EPS * fabs(log(x)) * x * exp(f->logpdf(ta, x)) + 1e-12 * fmin(p, q);
+      double ty = 4 * EPS * fabs(log(y)) * y * exp(f->logpdf(ta, y)) + 1e-12 * fmin(p, q);
+      ck_assert_msg(fabs(f->cdf_P(ta, x) - p) <= tx, "shape %g: P(qP(%g)) = %.17g (tol %g)",
+                    shapes[i], p, f->cdf_P(ta, x), tx);
+      ck_assert_msg(fabs(f->cdf_Q(ta, y) - q) <= ty, "shape %g: Q(qQ(%g)) = %.17g (tol %g)",
+                    shapes[i], q, f->cdf_Q(ta, y), ty);
+    }
+  }
+  /* Past the cap: an error naming the parameter. */
+  sp_error err;
+  sp_error_clear(&err);
+  const double big[2] = {1e21, 1.0};
+  ck_assert_int_eq(f->check(big, &err), SP_EUSAGE);
+  ck_assert_msg(strstr(err.msg, "gamma: shape must be at most 1e+20") != NULL, "%s", err.msg);
+}
+END_TEST
+
 static Suite *dist_suite(void)
 {
   Suite *s = suite_create("dist");
@@ -1805,6 +1853,7 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_weibull_mle_large_and_wide);
   tcase_add_test(tc, test_fit_start);
   tcase_add_test(tc, test_fit_errors);
+  tcase_add_test(tc, test_gamma_large_shape);
   suite_add_tcase(s, tc);
   return s;
 }
