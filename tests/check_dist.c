@@ -1831,6 +1831,28 @@ START_TEST(test_gamma_large_shape)
 }
 END_TEST
 
+START_TEST(test_truncnormal_tiny_sd)
+{
+  /* sd = 1e-300 puts the limits -1 and 1 at -1e300 and 1e300 sd, where
+   * GSL's gsl_sf_log_erfc returned NaN, so every quantile (and sample) was
+   * NaN.  The truncation is then immaterial: quantiles are sd * z_p, with
+   * z_0.1 = -1.281551565544600467 and, for the half-normal on [0, 1],
+   * z_0.55 = 0.12566134685507403421 (mpmath 1.2.1: sqrt(2) erfinv(2p - 1)).
+   * Tolerance: 64 EPS for the inverse normal and the scaling. */
+  const sp_family *f = fam("truncnormal");
+  const double t1[4] = {0.0, 1e-300, -1.0, 1.0}, t2[4] = {0.0, 1e-300, 0.0, 1.0};
+  ASSERT_REL(f->quantile_P(t1, 0.1), -1.281551565544600467e-300, 64 * EPS);
+  ASSERT_REL(f->quantile_Q(t1, 0.1), 1.281551565544600467e-300, 64 * EPS);
+  ASSERT_REL(f->quantile_P(t2, 0.1), 0.12566134685507403421e-300, 64 * EPS);
+  double out[64];
+  sp_pcg64 g;
+  sp_pcg64_seed(&g, 0, 1, 0, 2);
+  f->sample(t1, &g, out, 64);
+  for (size_t i = 0; i < 64; i++)
+    ck_assert_msg(isfinite(out[i]) && fabs(out[i]) < 1e-298, "sample %zu = %g", i, out[i]);
+}
+END_TEST
+
 static Suite *dist_suite(void)
 {
   Suite *s = suite_create("dist");
@@ -1854,6 +1876,7 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_fit_start);
   tcase_add_test(tc, test_fit_errors);
   tcase_add_test(tc, test_gamma_large_shape);
+  tcase_add_test(tc, test_truncnormal_tiny_sd);
   suite_add_tcase(s, tc);
   return s;
 }
