@@ -1853,6 +1853,28 @@ START_TEST(test_truncnormal_tiny_sd)
 }
 END_TEST
 
+START_TEST(test_triangular_extreme_widths)
+{
+  /* Widths past 1e154 overflowed the product of two widths (NaN
+   * quantiles), widths below 1e-154 underflowed it (NaN log density).
+   * Closed forms: for x <= mode, x = min + sqrt(p (max - min)(mode - min))
+   * (mpmath 1.2.1 at 60 digits: -2.9289321881345249098e299 for
+   * triangular(-1e300, 0, 1) at p = 1/2), P(-5e299) = (5e299)^2 / (1e300
+   * (1e300 + 1)) = 0.25, and the density 2 (x - min) / ((max - min)(mode -
+   * min)) = 1e300 at x = 0.5e-300 of triangular(0, 1e-300, 1e-300), log
+   * 690.77552789821370518.  Tolerance 16 EPS (a few roundings). */
+  const sp_family *f = fam("triangular");
+  const double wide[3] = {-1e300, 0.0, 1.0}, narrow[3] = {0.0, 1e-300, 1e-300};
+  ASSERT_REL(f->quantile_P(wide, 0.5), -2.9289321881345249098e299, 16 * EPS);
+  ASSERT_REL(f->quantile_Q(wide, 0.5), -2.9289321881345249098e299, 16 * EPS);
+  ASSERT_REL(f->cdf_P(wide, -5e299), 0.25, 16 * EPS);
+  ASSERT_REL(f->cdf_Q(wide, -5e299), 0.75, 16 * EPS);
+  ASSERT_REL(f->logpdf(narrow, 0.5e-300), 690.77552789821370518, 16 * EPS);
+  ck_assert(f->logpdf(narrow, 0.0) == -INFINITY);
+  ASSERT_REL(f->quantile_P(narrow, 0.25), 0.5e-300, 16 * EPS);
+}
+END_TEST
+
 static Suite *dist_suite(void)
 {
   Suite *s = suite_create("dist");
@@ -1877,6 +1899,7 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_fit_errors);
   tcase_add_test(tc, test_gamma_large_shape);
   tcase_add_test(tc, test_truncnormal_tiny_sd);
+  tcase_add_test(tc, test_triangular_extreme_widths);
   suite_add_tcase(s, tc);
   return s;
 }
