@@ -345,7 +345,7 @@ sp_status sp_engine_sobol_indices(const sp_engine_input *inputs, size_t ninputs,
         if (m >= 2) {
           engine_moments mm;
           engine_moments_block(col, m, &mm);
-          se = sqrt(mm.m2 / ((double)m - 1.0));
+          se = engine_moments_sd(&mm);
           lo = sp_quantile_select(col, m, plo);
           hi = sp_quantile_select(col, m, phi);
         }
