@@ -160,6 +160,11 @@ int engine_threads_resolve(int t);
 /* Checks opt against the domains documented in engine.h. */
 sp_status engine_options_check(const sp_engine_options *opt, size_t ninputs,
                                size_t noutputs, int indices, sp_error *err);
+/* The sample-count limits of rank sensitivity and Sobol' indices (2^32 - 1),
+ * checked after the memory guard so that a run too large for memory is
+ * refused with its figure first. */
+sp_status engine_options_check_counts(const sp_engine_options *opt, int indices,
+                                      sp_error *err);
 /* The default percentiles (percent) and their count. */
 extern const double engine_default_percentiles[];
 extern const size_t engine_ndefault_percentiles;

@@ -200,6 +200,8 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
 
   st = engine_memory_guard(engine_run_bytes(opt, k, nout, planned, T), opt->memory_limit, err);
   if (st != SP_OK) return st;
+  st = engine_options_check_counts(opt, 0, err);
+  if (st != SP_OK) return st;
 
   engine_inputs inp;
   st = engine_inputs_init(&inp, inputs, k, opt->corr, opt->ncorr, err);

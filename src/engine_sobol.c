@@ -191,6 +191,8 @@ sp_status sp_engine_sobol_indices(const sp_engine_input *inputs, size_t ninputs,
   const uint64_t N = opt->samples, B = opt->block;
   st = engine_memory_guard(engine_sobol_bytes(opt, k, nout, T), opt->memory_limit, err);
   if (st != SP_OK) return st;
+  st = engine_options_check_counts(opt, 1, err);
+  if (st != SP_OK) return st;
 
   engine_inputs inp;
   st = engine_inputs_init(&inp, inputs, k, NULL, 0, err);

@@ -457,6 +457,36 @@ START_TEST(test_moments_extreme_scale)
 }
 END_TEST
 
+START_TEST(test_memory_before_count_limits)
+{
+  /* 1e11 samples with rank sensitivity (or 1e11 Sobol' base samples) pass
+   * the 2^32 - 1 limit of those analyses and need some 7 TB: the refusal
+   * must be the memory figure (SP_ENOMEM, exit 5), not the count limit (a
+   * usage error that hides what the run would cost). */
+  double c[] = {1, 1};
+  model_ctx mc = {m_linear, c};
+  sp_evaluator ev = evaluator(&mc, 1, 1);
+  sp_engine_input in[1] = {input(&fam_normal, 0, 1, "a")};
+  sp_engine_options o = opts(100000000000u, 1);
+  o.rank_sensitivity = 1;
+  o.memory_limit = 1000000000u;
+  sp_error err;
+  ck_assert_int_eq(run_err(in, 1, &ev, &o, &err), SP_ENOMEM);
+  ck_assert_msg(strstr(err.msg, "this run needs ") && strstr(err.msg, "the limit is 1.0 GB"),
+                "%s", err.msg);
+  sp_engine_sobol_result sr;
+  sp_error_clear(&err);
+  ck_assert_int_eq(sp_engine_sobol_indices(in, 1, &ev, &o, &sr, &err), SP_ENOMEM);
+  ck_assert_msg(strstr(err.msg, "this run needs "), "%s", err.msg);
+  sp_engine_sobol_result_free(&sr);
+  /* Within memory, the count limits still apply. */
+  o.memory_limit = UINT64_MAX;
+  o.samples = (uint64_t)UINT32_MAX + 1;
+  ck_assert_int_eq(run_err(in, 1, &ev, &o, &err), SP_EUSAGE);
+  ck_assert_str_eq(err.msg, "rank sensitivity: at most 4294967295 samples");
+}
+END_TEST
+
 /* ---- tests: small building blocks -------------------------------------------- */
 
 START_TEST(test_building_blocks)
@@ -1393,6 +1423,7 @@ static Suite *engine_suite(void)
   tcase_add_test(tc, test_sobol_linear);
   tcase_add_test(tc, test_registered_families);
   tcase_add_test(tc, test_moments_extreme_scale);
+  tcase_add_test(tc, test_memory_before_count_limits);
   suite_add_tcase(s, tc);
   return s;
 }
