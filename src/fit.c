@@ -513,22 +513,33 @@ void sp_fit_rank(sp_fit_result *r)
     c->rejected = c->judged_by >= 0 && c->gof[c->judged_by].p < o->alpha;
     if (!c->rejected) nfree++;
   }
+  /* AICc needs n > k + 1.  When no fitted candidate has it (n = 3 with two
+   * parameters), every AICc would be an equal infinity and the ranking the
+   * order of the list: rank by AIC then, and say so. */
+  sp_fit_select sel = o->select;
+  int aicc_undefined = 0;
+  if (sel == SP_FIT_SELECT_AICC && nok > 0) {
+    aicc_undefined = 1;
+    for (size_t i = 0; i < r->ncand; i++)
+      if (r->cand[i].status == SP_FIT_OK && isfinite(r->cand[i].aicc)) aicc_undefined = 0;
+    if (aicc_undefined) sel = SP_FIT_SELECT_AIC;
+  }
   /* Rank by the criterion; ties keep candidate order. */
   for (size_t i = 0; i < r->ncand; i++) {
     sp_fit_candidate *c = &r->cand[i];
     if (c->status != SP_FIT_OK) continue;
-    double v = sp_fit_criterion(c, o->select);
+    double v = sp_fit_criterion(c, sel);
     size_t rank = 1;
     for (size_t j = 0; j < r->ncand; j++) {
       const sp_fit_candidate *d = &r->cand[j];
       if (j == i || d->status != SP_FIT_OK) continue;
-      double u = sp_fit_criterion(d, o->select);
+      double u = sp_fit_criterion(d, sel);
       if (u < v || (u == v && j < i)) rank++;
     }
     c->rank = rank;
   }
-  const char *crit = criterion_label(o->select);
-  const char *best_word = o->select == SP_FIT_SELECT_LOGLIK ? "highest" : "lowest";
+  const char *crit = criterion_label(sel);
+  const char *best_word = sel == SP_FIT_SELECT_LOGLIK ? "highest" : "lowest";
   double alpha_pct = 100.0 * o->alpha;
   if (nok == 0) {
     snprintf(r->reason, sizeof r->reason, "no candidate family could be fitted");
@@ -545,8 +556,7 @@ void sp_fit_rank(sp_fit_result *r)
         return;
       }
       r->chosen = (long)i;
-      double v = o->select == SP_FIT_SELECT_LOGLIK ? c->loglik
-                                                   : sp_fit_criterion(c, o->select);
+      double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
       snprintf(r->reason, sizeof r->reason,
                "%s: chosen by request (%s %.1f, rank %zu of %zu%s)", c->family->name,
                crit, v, c->rank, nok, c->rejected ? ", rejected by A² at the level set" : "");
@@ -565,7 +575,7 @@ void sp_fit_rank(sp_fit_result *r)
   }
   r->chosen = best;
   const sp_fit_candidate *c = &r->cand[best];
-  double v = o->select == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, o->select);
+  double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
   const char *by = substitute ? "A² (W² where A² is infinite)" : "A²";
   if (nfree > 0)
     snprintf(r->reason, sizeof r->reason,
@@ -577,6 +587,11 @@ void sp_fit_rank(sp_fit_result *r)
              "%s: %s %s (%.1f) of the %zu fitted candidate%s; every one is rejected "
              "by %s at %g%%",
              c->family->name, best_word, crit, v, nok, nok == 1 ? "" : "s", by, alpha_pct);
+  if (aicc_undefined) {
+    size_t len = strlen(r->reason);
+    snprintf(r->reason + len, sizeof r->reason - len,
+             " (AICc is undefined for n = %zu: n <= k + 1 for every candidate)", r->n);
+  }
 }
 
 sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
