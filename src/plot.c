@@ -28,6 +28,7 @@
 
 #include "scatterprop/stats.h"
 #include "spawn.h"
+#include "strbuf.h"
 
 /* Points along a fitted curve: 200 segments across a 900-pixel plot are
  * about 4 px each, smooth to the eye for any unimodal density. */
@@ -191,53 +192,6 @@ static int stem_valid(const char *stem)
   return 1;
 }
 
-/* ---- a growing text buffer ---------------------------------------------- */
-
-typedef struct {
-  char *s;
-  size_t len, cap;
-  int oom;
-} sbuf;
-
-static void sb_add(sbuf *b, const char *s, size_t n)
-{
-  if (b->oom) return;
-  if (b->len + n + 1 > b->cap) {
-    size_t cap = b->cap ? b->cap : 1024;
-    while (cap < b->len + n + 1) {
-      if (cap > SIZE_MAX / 2) { b->oom = 1; return; }
-      cap *= 2;
-    }
-    char *ns = realloc(b->s, cap);
-    if (!ns) { b->oom = 1; return; }
-    b->s = ns;
-    b->cap = cap;
-  }
-  memcpy(b->s + b->len, s, n);
-  b->len += n;
-  b->s[b->len] = '\0';
-}
-
-static void sb_puts(sbuf *b, const char *s) { sb_add(b, s, strlen(s)); }
-
-static void sb_printf(sbuf *b, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
-static void sb_printf(sbuf *b, const char *fmt, ...)
-{
-  char tmp[512];
-  va_list ap;
-  va_start(ap, fmt);
-  int w = vsnprintf(tmp, sizeof tmp, fmt, ap);
-  va_end(ap);
-  if (w < 0) { b->oom = 1; return; }
-  if ((size_t)w < sizeof tmp) { sb_add(b, tmp, (size_t)w); return; }
-  char *big = malloc((size_t)w + 1);
-  if (!big) { b->oom = 1; return; }
-  va_start(ap, fmt);
-  vsnprintf(big, (size_t)w + 1, fmt, ap);
-  va_end(ap);
-  sb_add(b, big, (size_t)w);
-  free(big);
-}
 
 /* A number with 17 significant digits (round-trips every double) and a
  * '.' as decimal separator whatever the C locale says.  In a script
@@ -258,14 +212,14 @@ static void format_num(char *buf, size_t n, double v, int as_float)
   }
 }
 
-static void sb_num(sbuf *b, double v, int as_float)
+static void sb_num(sp_strbuf *b, double v, int as_float)
 {
   char tmp[40];
   format_num(tmp, sizeof tmp, v, as_float);
-  sb_puts(b, tmp);
+  sp_strbuf_puts(b, tmp);
 }
 
-static void sb_free(sbuf *b)
+static void sb_free(sp_strbuf *b)
 {
   free(b->s);
   b->s = NULL;
@@ -276,8 +230,8 @@ static void sb_free(sbuf *b)
 
 typedef struct {
   const char *kind;     /* template name without ".gp" */
-  sbuf vars;            /* gnuplot assignments */
-  sbuf data;            /* the data file */
+  sp_strbuf vars;            /* gnuplot assignments */
+  sp_strbuf data;            /* the data file */
   size_t nblocks;
   size_t block_rows;    /* rows in the current block */
   size_t block_cols;    /* columns of the current block */
@@ -299,44 +253,44 @@ static void ch_str(chart *c, const char *name, const char *text)
 {
   char q[QUOTED_MAX];
   sp_plot_gnuplot_string(text, q, sizeof q);
-  sb_printf(&c->vars, "%s = %s\n", name, q);
+  sp_strbuf_printf(&c->vars, "%s = %s\n", name, q);
 }
 
 static void ch_num(chart *c, const char *name, double v)
 {
-  sb_printf(&c->vars, "%s = ", name);
+  sp_strbuf_printf(&c->vars, "%s = ", name);
   sb_num(&c->vars, v, 1);
-  sb_puts(&c->vars, "\n");
+  sp_strbuf_puts(&c->vars, "\n");
 }
 
 static void ch_int(chart *c, const char *name, long v)
 {
-  sb_printf(&c->vars, "%s = %ld\n", name, v);
+  sp_strbuf_printf(&c->vars, "%s = %ld\n", name, v);
 }
 
 /* Arrays: gnuplot has no empty arrays, so n == 0 declares one dummy
  * element (templates loop over the separate count). */
 static void ch_array_begin(chart *c, const char *name, size_t n)
 {
-  sb_printf(&c->vars, "array %s[%zu] = [", name, n ? n : 1);
+  sp_strbuf_printf(&c->vars, "array %s[%zu] = [", name, n ? n : 1);
 }
 
 static void ch_array_str(chart *c, size_t i, const char *text)
 {
   char q[QUOTED_MAX];
   sp_plot_gnuplot_string(text, q, sizeof q);
-  sb_printf(&c->vars, "%s%s", i ? ", " : "", q);
+  sp_strbuf_printf(&c->vars, "%s%s", i ? ", " : "", q);
 }
 
 static void ch_array_num(chart *c, size_t i, double v)
 {
-  if (i) sb_puts(&c->vars, ", ");
+  if (i) sp_strbuf_puts(&c->vars, ", ");
   sb_num(&c->vars, v, 1);
 }
 
 static void ch_array_end(chart *c, size_t n, const char *dummy)
 {
-  sb_printf(&c->vars, "%s]\n", n ? "" : dummy);
+  sp_strbuf_printf(&c->vars, "%s]\n", n ? "" : dummy);
 }
 
 /* Closes the current block; an empty block gets one row of NaN, which
@@ -344,15 +298,15 @@ static void ch_array_end(chart *c, size_t n, const char *dummy)
 static void ch_close_block(chart *c)
 {
   if (c->nblocks == 0 || c->block_rows > 0) return;
-  for (size_t k = 0; k < c->block_cols; k++) sb_puts(&c->data, k ? " NaN" : "NaN");
-  sb_puts(&c->data, "\n");
+  for (size_t k = 0; k < c->block_cols; k++) sp_strbuf_puts(&c->data, k ? " NaN" : "NaN");
+  sp_strbuf_puts(&c->data, "\n");
 }
 
 static void ch_block(chart *c, const char *what, const char *columns)
 {
   ch_close_block(c);
-  if (c->nblocks) sb_puts(&c->data, "\n\n");
-  sb_printf(&c->data, "# index %zu: %s\n# columns: %s\n", c->nblocks, what, columns);
+  if (c->nblocks) sp_strbuf_puts(&c->data, "\n\n");
+  sp_strbuf_printf(&c->data, "# index %zu: %s\n# columns: %s\n", c->nblocks, what, columns);
   size_t cols = 0;
   for (const char *p = columns; *p;) {
     while (*p == ' ') p++;
@@ -368,10 +322,10 @@ static void ch_block(chart *c, const char *what, const char *columns)
 static void ch_row(chart *c, size_t k, const double *v)
 {
   for (size_t i = 0; i < k; i++) {
-    if (i) sb_puts(&c->data, " ");
+    if (i) sp_strbuf_puts(&c->data, " ");
     sb_num(&c->data, v[i], 0);
   }
-  sb_puts(&c->data, "\n");
+  sp_strbuf_puts(&c->data, "\n");
   c->block_rows++;
 }
 
@@ -416,11 +370,11 @@ static sp_status read_text(const char *path, char **out, sp_error *err)
   *out = NULL;
   FILE *fp = fopen(path, "rb");
   if (!fp) return sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
-  sbuf b = {0};
+  sp_strbuf b = {0};
   char tmp[4096];
   size_t got;
   while ((got = fread(tmp, 1, sizeof tmp, fp)) > 0) {
-    sb_add(&b, tmp, got);
+    sp_strbuf_add(&b, tmp, got);
     if (b.len > TEMPLATE_MAX) {
       fclose(fp);
       sb_free(&b);
@@ -438,7 +392,7 @@ static sp_status read_text(const char *path, char **out, sp_error *err)
     sb_free(&b);
     return sp_fail(err, SP_ENOMEM, "out of memory");
   }
-  if (!b.s) sb_add(&b, "", 0);
+  if (!b.s) sp_strbuf_add(&b, "", 0);
   if (b.oom) return sp_fail(err, SP_ENOMEM, "out of memory");
   *out = b.s;
   return SP_OK;
@@ -511,7 +465,7 @@ static sp_status take_dir(const char *dir, size_t len, char *buf, size_t n, sp_e
 
 sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_error *err)
 {
-  sbuf tried = {0};
+  sp_strbuf tried = {0};
   const char *env = getenv("SCATTERPROP_PLOTS");
   if (env && *env) {
     for (const char *p = env;;) {
@@ -522,7 +476,7 @@ sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_err
           sb_free(&tried);
           return take_dir(p, len, buf, n, err);
         }
-        sb_printf(&tried, "%s%.*s", tried.len ? ", " : "", (int)len, p);
+        sp_strbuf_printf(&tried, "%s%.*s", tried.len ? ", " : "", (int)len, p);
       }
       if (!end) break;
       p = end + 1;
@@ -545,7 +499,7 @@ sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_err
           sb_free(&tried);
           return take_dir(cand, (size_t)w, buf, n, err);
         }
-        sb_printf(&tried, "%s%s", tried.len ? ", " : "", cand);
+        sp_strbuf_printf(&tried, "%s%s", tried.len ? ", " : "", cand);
       }
     }
   }
@@ -554,7 +508,7 @@ sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_err
       sb_free(&tried);
       return take_dir(fallback, strlen(fallback), buf, n, err);
     }
-    sb_printf(&tried, "%s%s", tried.len ? ", " : "", fallback);
+    sp_strbuf_printf(&tried, "%s%s", tried.len ? ", " : "", fallback);
   }
   sp_fail(err, SP_EIO, "gnuplot templates not found (no style.gp in: %s)",
           tried.s ? tried.s : "no folder given");
@@ -577,21 +531,21 @@ static int line_is(const char *line, size_t len, const char *ph)
  * and this code cannot drift apart silently.  gnuplot's own macros
  * (@name in lower case) pass through. */
 static sp_status fill_template(const char *tpl, const char *tpl_path, const char *style,
-                               const char *header, const char *vars, sbuf *out, sp_error *err)
+                               const char *header, const char *vars, sp_strbuf *out, sp_error *err)
 {
   int seen_vars = 0, seen_style = 0;
   long lineno = 0;
-  sb_puts(out, header);
+  sp_strbuf_puts(out, header);
   for (const char *p = tpl; *p;) {
     const char *nl = strchr(p, '\n');
     size_t len = nl ? (size_t)(nl - p) : strlen(p);
     lineno++;
     if (line_is(p, len, "@VARS@")) {
-      sb_puts(out, vars);
+      sp_strbuf_puts(out, vars);
       seen_vars = 1;
     } else if (line_is(p, len, "@STYLE@")) {
-      sb_puts(out, style);
-      if (out->len && out->s[out->len - 1] != '\n') sb_puts(out, "\n");
+      sp_strbuf_puts(out, style);
+      if (out->len && out->s[out->len - 1] != '\n') sp_strbuf_puts(out, "\n");
       seen_style = 1;
     } else {
       for (size_t i = 0; i < len; i++) {
@@ -605,8 +559,8 @@ static sp_status fill_template(const char *tpl, const char *tpl_path, const char
                             "unknown placeholder %.*s (only @VARS@ and @STYLE@ lines are "
                             "filled)", (int)(j - i + 1), p + i);
       }
-      sb_add(out, p, len);
-      sb_puts(out, "\n");
+      sp_strbuf_add(out, p, len);
+      sp_strbuf_puts(out, "\n");
     }
     p += len;
     if (*p == '\n') p++;
@@ -718,19 +672,19 @@ static sp_status finish(chart *c, const sp_plot_options *opt, sp_plot_output *ou
   if ((st = read_text(tpl_path, &tpl, err))) return st;
   if ((st = read_text(style_path, &style, err))) { free(tpl); return st; }
 
-  sbuf vars = {0}, script = {0}, header = {0};
+  sp_strbuf vars = {0}, script = {0}, header = {0};
   char q[QUOTED_MAX];
-  sb_printf(&header,
+  sp_strbuf_printf(&header,
             "# Made by scatterprop %s from the template %s.gp.\n"
             "# To redraw (after restyling, say), run in this folder:  gnuplot %s.gp\n"
             "# It reads %s.dat and writes %s.png and %s.svg.\n",
             sp_version(), c->kind, stem, stem, stem, stem);
-  sb_puts(&vars, "# ---- chart variables (text from the input files is quoted data)\n");
+  sp_strbuf_puts(&vars, "# ---- chart variables (text from the input files is quoted data)\n");
   snprintf(q, sizeof q, "%s", stem);
-  sb_printf(&vars, "sp_stem = '%s'\nsp_data = '%s.dat'\n", q, q);
-  sb_printf(&vars, "sp_width = %u\nsp_height = %u\n", width, height);
-  sb_puts(&vars, c->vars.s ? c->vars.s : "");
-  sb_puts(&vars, "# ---- end of chart variables\n");
+  sp_strbuf_printf(&vars, "sp_stem = '%s'\nsp_data = '%s.dat'\n", q, q);
+  sp_strbuf_printf(&vars, "sp_width = %u\nsp_height = %u\n", width, height);
+  sp_strbuf_puts(&vars, c->vars.s ? c->vars.s : "");
+  sp_strbuf_puts(&vars, "# ---- end of chart variables\n");
   if (vars.oom || header.oom) {
     st = sp_fail(err, SP_ENOMEM, "out of memory");
     goto done;
@@ -821,13 +775,13 @@ static sp_status finish(chart *c, const sp_plot_options *opt, sp_plot_output *ou
   } else {
     char dirword[SP_PLOT_PATH_MAX / 2];
     shell_word(opt->outdir, dirword, sizeof dirword);
-    if (opt->gnuplot && !*opt->gnuplot)
-      snprintf(out->hint, sizeof out->hint,
-               "rendering not requested; to render the chart: cd %s && gnuplot %s.gp", dirword,
-               stem);
-    else
-      snprintf(out->hint, sizeof out->hint,
-               "gnuplot not found; to render the chart: cd %s && gnuplot %s.gp", dirword, stem);
+    /* A hint cut short by a very long folder name is still a hint. */
+    int hw = snprintf(out->hint, sizeof out->hint,
+                     "%s; to render the chart: cd %s && gnuplot %s.gp",
+                     opt->gnuplot && !*opt->gnuplot ? "rendering not requested"
+                                                    : "gnuplot not found",
+                     dirword, stem);
+    if (hw < 0) out->hint[0] = '\0';
   }
   st = SP_OK;
 unstage:

@@ -13,46 +13,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* ---- a growing text buffer ---------------------------------------------- */
+#include "strbuf.h"
 
-typedef struct {
-  char *s;
-  size_t len, cap;
-  int oom;
-} sbuf;
-
-static void sb_add(sbuf *b, const char *s, size_t n)
-{
-  if (b->oom) return;
-  if (b->len + n + 1 > b->cap) {
-    size_t cap = b->cap ? b->cap : 4096;
-    while (cap < b->len + n + 1) {
-      if (cap > SIZE_MAX / 2) { b->oom = 1; return; }
-      cap *= 2;
-    }
-    char *ns = realloc(b->s, cap);
-    if (!ns) { b->oom = 1; return; }
-    b->s = ns;
-    b->cap = cap;
-  }
-  memcpy(b->s + b->len, s, n);
-  b->len += n;
-  b->s[b->len] = '\0';
-}
-
-static void sb_puts(sbuf *b, const char *s) { sb_add(b, s, strlen(s)); }
-
-static void sb_printf(sbuf *b, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
-static void sb_printf(sbuf *b, const char *fmt, ...)
-{
-  char tmp[256];
-  va_list ap;
-  va_start(ap, fmt);
-  int w = vsnprintf(tmp, sizeof tmp, fmt, ap);
-  va_end(ap);
-  if (w < 0 || (size_t)w >= sizeof tmp) { b->oom = 1; return; }
-  sb_add(b, tmp, (size_t)w);
-}
 
 /* ---- text ----------------------------------------------------------------- */
 
@@ -90,42 +52,42 @@ static int unsafe_code_point(unsigned long cp)
 
 /* Appends text HTML-escaped.  pre keeps newlines and tabs (for <pre>);
  * otherwise they become spaces. */
-static void put_text_mode(sbuf *b, const char *text, int pre)
+static void put_text_mode(sp_strbuf *b, const char *text, int pre)
 {
   const unsigned char *s = (const unsigned char *)(text ? text : "");
   while (*s) {
     const unsigned char *run = s;
     while (*s && *s < 0x80 && *s >= 0x20 && *s != 0x7F && !strchr("&<>\"'", *s)) s++;
-    if (s > run) sb_add(b, (const char *)run, (size_t)(s - run));
+    if (s > run) sp_strbuf_add(b, (const char *)run, (size_t)(s - run));
     if (!*s) break;
     unsigned long cp = 0;
     size_t len;
     switch (*s) {
-    case '&': sb_puts(b, "&amp;"); s++; break;
-    case '<': sb_puts(b, "&lt;"); s++; break;
-    case '>': sb_puts(b, "&gt;"); s++; break;
-    case '"': sb_puts(b, "&quot;"); s++; break;
-    case '\'': sb_puts(b, "&#39;"); s++; break;
+    case '&': sp_strbuf_puts(b, "&amp;"); s++; break;
+    case '<': sp_strbuf_puts(b, "&lt;"); s++; break;
+    case '>': sp_strbuf_puts(b, "&gt;"); s++; break;
+    case '"': sp_strbuf_puts(b, "&quot;"); s++; break;
+    case '\'': sp_strbuf_puts(b, "&#39;"); s++; break;
     case '\n':
-    case '\t': sb_puts(b, pre ? (*s == '\n' ? "\n" : "\t") : " "); s++; break;
+    case '\t': sp_strbuf_puts(b, pre ? (*s == '\n' ? "\n" : "\t") : " "); s++; break;
     case '\r': s++; break;
     default:
       if (*s < 0x80) {
-        sb_puts(b, REPLACEMENT);
+        sp_strbuf_puts(b, REPLACEMENT);
         s++;
       } else if ((len = utf8_seq(s, &cp)) == 0) {
-        sb_puts(b, REPLACEMENT);
+        sp_strbuf_puts(b, REPLACEMENT);
         s++;
       } else {
-        if (unsafe_code_point(cp)) sb_puts(b, REPLACEMENT);
-        else sb_add(b, (const char *)s, len);
+        if (unsafe_code_point(cp)) sp_strbuf_puts(b, REPLACEMENT);
+        else sp_strbuf_add(b, (const char *)s, len);
         s += len;
       }
     }
   }
 }
 
-static void put_text(sbuf *b, const char *text) { put_text_mode(b, text, 0); }
+static void put_text(sp_strbuf *b, const char *text) { put_text_mode(b, text, 0); }
 
 /* ---- SVG ---------------------------------------------------------------- */
 
@@ -169,7 +131,7 @@ typedef struct {
   const char *path;
   unsigned fig;     /* figure number: ids become "fN-..." */
   sp_error *err;
-  sbuf ids;         /* ids seen so far, each followed by a NUL */
+  sp_strbuf ids;         /* ids seen so far, each followed by a NUL */
   unsigned dups;
 } svg_ctx;
 
@@ -183,14 +145,14 @@ static int seen_id(svg_ctx *cx, const char *v, size_t n)
     if (len == n && memcmp(cx->ids.s + i, v, n) == 0) return 1;
     i += len + 1;
   }
-  sb_add(&cx->ids, v, n);
-  sb_add(&cx->ids, "", 1);
+  sp_strbuf_add(&cx->ids, v, n);
+  sp_strbuf_add(&cx->ids, "", 1);
   return 0;
 }
 
 /* Appends an attribute value (without its quotes), with the ids it refers
  * to prefixed: "#x" for href, url(#x) anywhere. */
-static sp_status put_value(sbuf *b, svg_ctx *cx, const char *name, size_t nlen,
+static sp_status put_value(sp_strbuf *b, svg_ctx *cx, const char *name, size_t nlen,
                            const char *v, size_t vlen)
 {
   int is_href = ieq_n(name, nlen, "href") || (nlen > 5 && ieq_prefix(name + nlen - 5, ":href"));
@@ -204,19 +166,19 @@ static sp_status put_value(sbuf *b, svg_ctx *cx, const char *name, size_t nlen,
       return sp_fail(cx->err, SP_EDATA, "%s: SVG links outside itself (%.*s=\"%.*s\"); "
                                         "refusing to embed it", cx->path, (int)nlen, name,
                      (int)(vlen > 60 ? 60 : vlen), v);
-    sb_printf(b, "#f%u-", cx->fig);
+    sp_strbuf_printf(b, "#f%u-", cx->fig);
     v++;
     vlen--;
   } else if (is_id) {
-    sb_printf(b, "f%u-", cx->fig);
+    sp_strbuf_printf(b, "f%u-", cx->fig);
     if (seen_id(cx, v, vlen)) {
-      sb_add(b, v, vlen);
-      sb_printf(b, "-again%u", ++cx->dups);
+      sp_strbuf_add(b, v, vlen);
+      sp_strbuf_printf(b, "-again%u", ++cx->dups);
       return SP_OK;
     }
   }
   for (size_t i = 0; i < vlen; i++) {
-    if (v[i] == '"') { sb_puts(b, "&quot;"); continue; }
+    if (v[i] == '"') { sp_strbuf_puts(b, "&quot;"); continue; }
     if (v[i] == '<')
       return sp_fail(cx->err, SP_EDATA, "%s: '<' inside an SVG attribute value; not SVG",
                      cx->path);
@@ -227,12 +189,12 @@ static sp_status put_value(sbuf *b, svg_ctx *cx, const char *name, size_t nlen,
       if (j >= vlen || v[j] != '#')
         return sp_fail(cx->err, SP_EDATA, "%s: SVG refers to an outside resource with url(); "
                                           "refusing to embed it", cx->path);
-      sb_add(b, v + i, j + 1 - i);
-      sb_printf(b, "f%u-", cx->fig);
+      sp_strbuf_add(b, v + i, j + 1 - i);
+      sp_strbuf_printf(b, "f%u-", cx->fig);
       i = j;
       continue;
     }
-    sb_add(b, v + i, 1);
+    sp_strbuf_add(b, v + i, 1);
   }
   return SP_OK;
 }
@@ -240,7 +202,7 @@ static sp_status put_value(sbuf *b, svg_ctx *cx, const char *name, size_t nlen,
 /* Re-emits one start tag s[0..n) ("<name ...>" or "<name .../>") after
  * checking it.  root: the outermost <svg>, whose width and height are
  * dropped so that the page's CSS sizes it (the viewBox keeps the aspect). */
-static sp_status put_start_tag(sbuf *b, svg_ctx *cx, const char *s, size_t n, int root)
+static sp_status put_start_tag(sp_strbuf *b, svg_ctx *cx, const char *s, size_t n, int root)
 {
   size_t i = 1, j;
   for (j = i; j < n && name_char(s[j]); j++) {
@@ -254,9 +216,9 @@ static sp_status put_start_tag(sbuf *b, svg_ctx *cx, const char *s, size_t n, in
                    cx->path, (int)nlen, name);
   if (root && !ieq_n(name, nlen, "svg"))
     return sp_fail(cx->err, SP_EDATA, "%s: not an SVG document", cx->path);
-  sb_add(b, "<", 1);
-  sb_add(b, name, nlen);
-  if (root) sb_puts(b, " class=\"chart\" role=\"img\"");
+  sp_strbuf_add(b, "<", 1);
+  sp_strbuf_add(b, name, nlen);
+  if (root) sp_strbuf_puts(b, " class=\"chart\" role=\"img\"");
   i = j;
   int self_closing = 0;
   for (;;) {
@@ -288,14 +250,14 @@ static sp_status put_start_tag(sbuf *b, svg_ctx *cx, const char *s, size_t n, in
       return sp_fail(cx->err, SP_EDATA, "%s: SVG has an event attribute %.*s; refusing to "
                                         "embed it", cx->path, (int)alen, an);
     if (root && (ieq_n(an, alen, "width") || ieq_n(an, alen, "height"))) continue;
-    sb_add(b, " ", 1);
-    sb_add(b, an, alen);
-    sb_puts(b, "=\"");
+    sp_strbuf_add(b, " ", 1);
+    sp_strbuf_add(b, an, alen);
+    sp_strbuf_puts(b, "=\"");
     sp_status st = put_value(b, cx, an, alen, s + v0, vlen);
     if (st) return st;
-    sb_puts(b, "\"");
+    sp_strbuf_puts(b, "\"");
   }
-  sb_puts(b, self_closing ? "/>" : ">");
+  sp_strbuf_puts(b, self_closing ? "/>" : ">");
   return SP_OK;
 }
 
@@ -328,7 +290,7 @@ static sp_status read_svg(const char *path, char **out, size_t *len, sp_error *e
   *out = NULL;
   FILE *fp = fopen(path, "rb");
   if (!fp) return sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
-  sbuf b = {0};
+  sp_strbuf b = {0};
   char tmp[8192];
   size_t got;
   while ((got = fread(tmp, 1, sizeof tmp, fp)) > 0) {
@@ -338,7 +300,7 @@ static sp_status read_svg(const char *path, char **out, size_t *len, sp_error *e
       return sp_fail(err, SP_ELIMIT, "%s: SVG larger than %zu bytes; not embedded", path,
                      SP_REPORT_SVG_MAX);
     }
-    sb_add(&b, tmp, got);
+    sp_strbuf_add(&b, tmp, got);
   }
   int bad = ferror(fp);
   fclose(fp);
@@ -386,7 +348,7 @@ static const char *skip_prolog(const char *p, const char *end)
  * checked and re-emitted, comments and processing instructions dropped,
  * text between tags copied (an SVG writer escapes it already; a stray
  * '<' would start a tag and be checked as one). */
-static sp_status embed_svg(sbuf *b, const char *path, unsigned fig, sp_error *err)
+static sp_status embed_svg(sp_strbuf *b, const char *path, unsigned fig, sp_error *err)
 {
   char *doc;
   size_t len;
@@ -409,7 +371,7 @@ static sp_status embed_svg(sbuf *b, const char *path, unsigned fig, sp_error *er
     if (*p != '<') {
       const char *q = memchr(p, '<', (size_t)(end - p));
       if (!q) q = end;
-      sb_add(b, p, (size_t)(q - p));
+      sp_strbuf_add(b, p, (size_t)(q - p));
       p = q;
       continue;
     }
@@ -437,9 +399,9 @@ static sp_status embed_svg(sbuf *b, const char *path, unsigned fig, sp_error *er
       const char *n0 = p + 2, *n1 = n0;
       while (n1 < q && name_char(*n1)) n1++;
       if (n1 == n0) { st = sp_fail(err, SP_EDATA, "%s: malformed end tag", path); break; }
-      sb_puts(b, "</");
-      sb_add(b, n0, (size_t)(n1 - n0));
-      sb_puts(b, ">");
+      sp_strbuf_puts(b, "</");
+      sp_strbuf_add(b, n0, (size_t)(n1 - n0));
+      sp_strbuf_puts(b, ">");
     } else {
       if ((st = put_start_tag(b, &cx, p, (size_t)(q - p + 1), root))) break;
       root = 0;
@@ -501,7 +463,7 @@ static const char *const CSS =
     "nav a{color:inherit;text-decoration:none}figure svg.chart{max-width:100%}}\n";
 
 typedef struct {
-  sbuf b;
+  sp_strbuf b;
   unsigned nfig, ntab;
   sp_error *err;
 } doc;
@@ -535,15 +497,15 @@ static sp_status check_table(const sp_report_table *t, sp_error *err)
 static void put_facts(doc *d, const sp_report_fact *f, size_t n)
 {
   if (n == 0) return;
-  sb_puts(&d->b, "<dl class=\"facts\">\n");
+  sp_strbuf_puts(&d->b, "<dl class=\"facts\">\n");
   for (size_t i = 0; i < n; i++) {
-    sb_puts(&d->b, "<dt>");
+    sp_strbuf_puts(&d->b, "<dt>");
     put_text(&d->b, f[i].key);
-    sb_puts(&d->b, "</dt><dd>");
+    sp_strbuf_puts(&d->b, "</dt><dd>");
     put_text(&d->b, f[i].value);
-    sb_puts(&d->b, "</dd>\n");
+    sp_strbuf_puts(&d->b, "</dd>\n");
   }
-  sb_puts(&d->b, "</dl>\n");
+  sp_strbuf_puts(&d->b, "</dl>\n");
 }
 
 static sp_status put_table(doc *d, const sp_report_table *t)
@@ -551,34 +513,34 @@ static sp_status put_table(doc *d, const sp_report_table *t)
   sp_status st = check_table(t, d->err);
   if (st) return st;
   d->ntab++;
-  sb_puts(&d->b, "<table>\n<caption>");
-  sb_printf(&d->b, "Table %u.", d->ntab);
+  sp_strbuf_puts(&d->b, "<table>\n<caption>");
+  sp_strbuf_printf(&d->b, "Table %u.", d->ntab);
   if (t->caption && *t->caption) {
-    sb_puts(&d->b, " ");
+    sp_strbuf_puts(&d->b, " ");
     put_text(&d->b, t->caption);
   }
-  sb_puts(&d->b, "</caption>\n");
+  sp_strbuf_puts(&d->b, "</caption>\n");
   if (t->head) {
-    sb_puts(&d->b, "<thead><tr>");
+    sp_strbuf_puts(&d->b, "<thead><tr>");
     for (size_t c = 0; c < t->ncols; c++) {
-      sb_puts(&d->b, t->align && t->align[c] == 'r' ? "<th class=\"r\" scope=\"col\">"
+      sp_strbuf_puts(&d->b, t->align && t->align[c] == 'r' ? "<th class=\"r\" scope=\"col\">"
                                                    : "<th scope=\"col\">");
       put_text(&d->b, t->head[c]);
-      sb_puts(&d->b, "</th>");
+      sp_strbuf_puts(&d->b, "</th>");
     }
-    sb_puts(&d->b, "</tr></thead>\n");
+    sp_strbuf_puts(&d->b, "</tr></thead>\n");
   }
-  sb_puts(&d->b, "<tbody>\n");
+  sp_strbuf_puts(&d->b, "<tbody>\n");
   for (size_t r = 0; r < t->nrows; r++) {
-    sb_puts(&d->b, "<tr>");
+    sp_strbuf_puts(&d->b, "<tr>");
     for (size_t c = 0; c < t->ncols; c++) {
-      sb_puts(&d->b, t->align && t->align[c] == 'r' ? "<td class=\"r\">" : "<td>");
+      sp_strbuf_puts(&d->b, t->align && t->align[c] == 'r' ? "<td class=\"r\">" : "<td>");
       put_text(&d->b, t->cells[r * t->ncols + c]);
-      sb_puts(&d->b, "</td>");
+      sp_strbuf_puts(&d->b, "</td>");
     }
-    sb_puts(&d->b, "</tr>\n");
+    sp_strbuf_puts(&d->b, "</tr>\n");
   }
-  sb_puts(&d->b, "</tbody>\n</table>\n");
+  sp_strbuf_puts(&d->b, "</tbody>\n</table>\n");
   return SP_OK;
 }
 
@@ -586,23 +548,23 @@ static sp_status put_figure(doc *d, const sp_report_figure *f)
 {
   if (!f) return sp_fail(d->err, SP_EUSAGE, "report: a figure block without its figure");
   d->nfig++;
-  sb_printf(&d->b, "<figure id=\"figure-%u\">\n", d->nfig);
+  sp_strbuf_printf(&d->b, "<figure id=\"figure-%u\">\n", d->nfig);
   if (f->svg_path) {
     sp_status st = embed_svg(&d->b, f->svg_path, d->nfig, d->err);
     if (st) return st;
-    sb_puts(&d->b, "\n");
+    sp_strbuf_puts(&d->b, "\n");
   } else {
-    sb_puts(&d->b, "<div class=\"missing\">");
+    sp_strbuf_puts(&d->b, "<div class=\"missing\">");
     put_text(&d->b, f->missing_note && *f->missing_note ? f->missing_note
                                                         : "chart not rendered");
-    sb_puts(&d->b, "</div>\n");
+    sp_strbuf_puts(&d->b, "</div>\n");
   }
-  sb_printf(&d->b, "<figcaption>Figure %u.", d->nfig);
+  sp_strbuf_printf(&d->b, "<figcaption>Figure %u.", d->nfig);
   if (f->caption && *f->caption) {
-    sb_puts(&d->b, " ");
+    sp_strbuf_puts(&d->b, " ");
     put_text(&d->b, f->caption);
   }
-  sb_puts(&d->b, "</figcaption>\n</figure>\n");
+  sp_strbuf_puts(&d->b, "</figcaption>\n</figure>\n");
   return SP_OK;
 }
 
@@ -610,19 +572,19 @@ static sp_status put_block(doc *d, const sp_report_block *blk)
 {
   switch (blk->kind) {
   case SP_REPORT_PARAGRAPH:
-    sb_puts(&d->b, "<p>");
+    sp_strbuf_puts(&d->b, "<p>");
     put_text(&d->b, blk->text);
-    sb_puts(&d->b, "</p>\n");
+    sp_strbuf_puts(&d->b, "</p>\n");
     return SP_OK;
   case SP_REPORT_NOTE:
-    sb_puts(&d->b, "<p class=\"note\">");
+    sp_strbuf_puts(&d->b, "<p class=\"note\">");
     put_text(&d->b, blk->text);
-    sb_puts(&d->b, "</p>\n");
+    sp_strbuf_puts(&d->b, "</p>\n");
     return SP_OK;
   case SP_REPORT_PRE:
-    sb_puts(&d->b, "<pre>");
+    sp_strbuf_puts(&d->b, "<pre>");
     put_text_mode(&d->b, blk->text, 1);
-    sb_puts(&d->b, "</pre>\n");
+    sp_strbuf_puts(&d->b, "</pre>\n");
     return SP_OK;
   case SP_REPORT_TABLE:
     return put_table(d, blk->table);
@@ -651,51 +613,51 @@ static void section_number(const sp_report *r, size_t k, char *buf, size_t n)
 
 static void put_provenance(doc *d, const sp_report *r)
 {
-  sb_puts(&d->b, "<section id=\"provenance\">\n<h2>Provenance</h2>\n<dl class=\"facts\">\n");
-  sb_puts(&d->b, "<dt>tool</dt><dd>scatterprop ");
+  sp_strbuf_puts(&d->b, "<section id=\"provenance\">\n<h2>Provenance</h2>\n<dl class=\"facts\">\n");
+  sp_strbuf_puts(&d->b, "<dt>tool</dt><dd>scatterprop ");
   put_text(&d->b, sp_version());
-  sb_puts(&d->b, " (revision ");
+  sp_strbuf_puts(&d->b, " (revision ");
   put_text(&d->b, sp_git_revision());
-  sb_puts(&d->b, ", ");
+  sp_strbuf_puts(&d->b, ", ");
   put_text(&d->b, sp_build_compiler());
-  sb_puts(&d->b, ", GSL ");
+  sp_strbuf_puts(&d->b, ", GSL ");
   put_text(&d->b, sp_build_gsl_version());
-  sb_puts(&d->b, ")</dd>\n");
+  sp_strbuf_puts(&d->b, ")</dd>\n");
   if (r->created && *r->created) {
-    sb_puts(&d->b, "<dt>created</dt><dd>");
+    sp_strbuf_puts(&d->b, "<dt>created</dt><dd>");
     put_text(&d->b, r->created);
-    sb_puts(&d->b, "</dd>\n");
+    sp_strbuf_puts(&d->b, "</dd>\n");
   }
-  sb_puts(&d->b, "</dl>\n");
+  sp_strbuf_puts(&d->b, "</dl>\n");
   if (r->command && *r->command) {
-    sb_puts(&d->b, "<p>Command:</p>\n<pre>");
+    sp_strbuf_puts(&d->b, "<p>Command:</p>\n<pre>");
     put_text_mode(&d->b, r->command, 1);
-    sb_puts(&d->b, "</pre>\n");
+    sp_strbuf_puts(&d->b, "</pre>\n");
   }
   if (r->ninputs > 0) {
     d->ntab++;
-    sb_printf(&d->b, "<table>\n<caption>Table %u. Input files and their SHA-256.</caption>\n"
+    sp_strbuf_printf(&d->b, "<table>\n<caption>Table %u. Input files and their SHA-256.</caption>\n"
                      "<thead><tr><th scope=\"col\">role</th><th scope=\"col\">file</th>"
                      "<th class=\"r\" scope=\"col\">bytes</th><th scope=\"col\">SHA-256</th>"
                      "</tr></thead>\n<tbody>\n", d->ntab);
     for (size_t i = 0; i < r->ninputs; i++) {
       const sp_report_input *in = &r->inputs[i];
-      sb_puts(&d->b, "<tr><td>");
+      sp_strbuf_puts(&d->b, "<tr><td>");
       put_text(&d->b, in->role);
-      sb_puts(&d->b, "</td><td>");
+      sp_strbuf_puts(&d->b, "</td><td>");
       put_text(&d->b, in->path);
-      sb_printf(&d->b, "</td><td class=\"r\">%llu</td><td class=\"hash\">",
+      sp_strbuf_printf(&d->b, "</td><td class=\"r\">%llu</td><td class=\"hash\">",
                 (unsigned long long)in->size);
       put_text(&d->b, in->sha256);
-      sb_puts(&d->b, "</td></tr>\n");
+      sp_strbuf_puts(&d->b, "</td></tr>\n");
     }
-    sb_puts(&d->b, "</tbody>\n</table>\n");
+    sp_strbuf_puts(&d->b, "</tbody>\n</table>\n");
   }
   if (r->nsettings > 0) {
-    sb_puts(&d->b, "<h3>Settings</h3>\n");
+    sp_strbuf_puts(&d->b, "<h3>Settings</h3>\n");
     put_facts(d, r->settings, r->nsettings);
   }
-  sb_puts(&d->b, "</section>\n");
+  sp_strbuf_puts(&d->b, "</section>\n");
 }
 
 static sp_status check_report(const sp_report *r, sp_error *err)
@@ -722,7 +684,7 @@ static sp_status check_report(const sp_report *r, sp_error *err)
   return SP_OK;
 }
 
-static sp_status build(const sp_report *r, sbuf *out, sp_error *err)
+static sp_status build(const sp_report *r, sp_strbuf *out, sp_error *err)
 {
   sp_status st0 = check_report(r, err);
   if (st0) return st0;
@@ -731,7 +693,7 @@ static sp_status build(const sp_report *r, sbuf *out, sp_error *err)
   d.err = err;
   const char *title = r->title && *r->title ? r->title : "scatterprop report";
 
-  sb_puts(&d.b, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+  sp_strbuf_puts(&d.b, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
                 "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
                 /* No script may run and nothing may be fetched: the report is
                  * complete in itself. */
@@ -739,33 +701,33 @@ static sp_status build(const sp_report *r, sbuf *out, sp_error *err)
                 "style-src 'unsafe-inline'; img-src data:\">\n<meta name=\"generator\" "
                 "content=\"scatterprop ");
   put_text(&d.b, sp_version());
-  sb_puts(&d.b, "\">\n<title>");
+  sp_strbuf_puts(&d.b, "\">\n<title>");
   put_text(&d.b, title);
-  sb_puts(&d.b, "</title>\n<style>\n");
-  sb_puts(&d.b, CSS);
-  sb_puts(&d.b, "</style>\n</head>\n<body>\n<header>\n<h1>");
+  sp_strbuf_puts(&d.b, "</title>\n<style>\n");
+  sp_strbuf_puts(&d.b, CSS);
+  sp_strbuf_puts(&d.b, "</style>\n</head>\n<body>\n<header>\n<h1>");
   put_text(&d.b, title);
-  sb_puts(&d.b, "</h1>\n<p class=\"meta\">scatterprop ");
+  sp_strbuf_puts(&d.b, "</h1>\n<p class=\"meta\">scatterprop ");
   put_text(&d.b, sp_version());
   if (r->created && *r->created) {
-    sb_puts(&d.b, " &middot; ");
+    sp_strbuf_puts(&d.b, " &middot; ");
     put_text(&d.b, r->created);
   }
-  sb_puts(&d.b, "</p>\n</header>\n<aside class=\"caution\" role=\"note\">");
+  sp_strbuf_puts(&d.b, "</p>\n</header>\n<aside class=\"caution\" role=\"note\">");
   put_text(&d.b, sp_caution_text());
-  sb_puts(&d.b, "</aside>\n");
+  sp_strbuf_puts(&d.b, "</aside>\n");
 
-  sb_puts(&d.b, "<nav aria-label=\"contents\">\n<strong>Contents</strong>\n<ol>\n"
+  sp_strbuf_puts(&d.b, "<nav aria-label=\"contents\">\n<strong>Contents</strong>\n<ol>\n"
                 "<li><a href=\"#provenance\">Provenance</a></li>\n");
   for (size_t i = 0; i < r->nsections; i++) {
     char num[32];
     section_number(r, i, num, sizeof num);
     if (r->sections[i].level == 2) continue;
-    sb_printf(&d.b, "<li><a href=\"#section-%s\">%s ", num, num);
+    sp_strbuf_printf(&d.b, "<li><a href=\"#section-%s\">%s ", num, num);
     put_text(&d.b, r->sections[i].title);
-    sb_puts(&d.b, "</a></li>\n");
+    sp_strbuf_puts(&d.b, "</a></li>\n");
   }
-  sb_puts(&d.b, "</ol>\n</nav>\n<main>\n");
+  sp_strbuf_puts(&d.b, "</ol>\n</nav>\n<main>\n");
   put_provenance(&d, r);
 
   sp_status st = SP_OK;
@@ -778,21 +740,21 @@ static sp_status build(const sp_report *r, sbuf *out, sp_error *err)
     for (char *p = id; *p; p++)
       if (*p == '.') *p = '-';
     if (s->level == 1) {
-      if (open) sb_puts(&d.b, "</section>\n");
-      sb_printf(&d.b, "<section id=\"section-%s\">\n<h2>%s ", num, num);
+      if (open) sp_strbuf_puts(&d.b, "</section>\n");
+      sp_strbuf_printf(&d.b, "<section id=\"section-%s\">\n<h2>%s ", num, num);
       open = 1;
     } else {
-      sb_printf(&d.b, "<h3 id=\"%s\">%s ", id, num);
+      sp_strbuf_printf(&d.b, "<h3 id=\"%s\">%s ", id, num);
     }
     put_text(&d.b, s->title);
-    sb_puts(&d.b, s->level == 1 ? "</h2>\n" : "</h3>\n");
+    sp_strbuf_puts(&d.b, s->level == 1 ? "</h2>\n" : "</h3>\n");
     for (size_t k = 0; k < s->nblocks && st == SP_OK; k++) st = put_block(&d, &s->blocks[k]);
   }
   if (st == SP_OK) {
-    if (open) sb_puts(&d.b, "</section>\n");
-    sb_puts(&d.b, "</main>\n<footer>Made by scatterprop ");
+    if (open) sp_strbuf_puts(&d.b, "</section>\n");
+    sp_strbuf_puts(&d.b, "</main>\n<footer>Made by scatterprop ");
     put_text(&d.b, sp_version());
-    sb_puts(&d.b, ". Figures drawn with gnuplot; colours from the Okabe &amp; Ito (2008) "
+    sp_strbuf_puts(&d.b, ". Figures drawn with gnuplot; colours from the Okabe &amp; Ito (2008) "
                   "colour-universal-design palette.</footer>\n</body>\n</html>\n");
     if (d.b.oom) st = sp_fail(err, SP_ENOMEM, "out of memory");
   }
@@ -807,7 +769,7 @@ static sp_status build(const sp_report *r, sbuf *out, sp_error *err)
 char *sp_report_html(const sp_report *r, size_t *len, sp_error *err)
 {
   if (len) *len = 0;
-  sbuf b = {0};
+  sp_strbuf b = {0};
   if (build(r, &b, err)) return NULL;
   if (len) *len = b.len;
   return b.s;
@@ -817,7 +779,7 @@ sp_status sp_report_write_html(const sp_report *r, const char *path, int overwri
                                sp_error *err)
 {
   if (!path || !*path) return sp_fail(err, SP_EUSAGE, "report: no output path given");
-  sbuf b = {0};
+  sp_strbuf b = {0};
   sp_status st = build(r, &b, err);
   if (st) return st;
   st = sp_file_write_atomic(path, b.s, b.len, overwrite, err);

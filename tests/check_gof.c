@@ -624,7 +624,7 @@ END_TEST
 static double table49(double a)
 {
   /* D'Agostino & Stephens (1986) Table 4.9, typed again from the source
-   * (not shared with the library) so a transcription slip shows. */
+   * (not shared with the library) so a copying slip shows. */
   if (a < 0.2) return 1.0 - exp(-13.436 + 101.14 * a - 223.73 * a * a);
   if (a < 0.34) return 1.0 - exp(-8.318 + 42.796 * a - 59.938 * a * a);
   if (a < 0.6) return exp(0.9177 - 4.279 * a - 1.38 * a * a);

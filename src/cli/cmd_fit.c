@@ -9,6 +9,7 @@
 #include "cli.h"
 #include "scatterprop/dist.h"
 #include "scatterprop/fit.h"
+#include "scatterprop/fitplot.h"
 #include "scatterprop/ingest.h"
 #include "scatterprop/record.h"
 
@@ -18,7 +19,7 @@ void cli_fit_help(FILE *out)
           "Usage: scatterprop fit FILE.csv --column NAME [--families LIST] [--by LOT]\n"
           "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
           "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
-          "                       [--alpha A] [--out FIT.json] [--force] [--json]\n"
+          "                       [--alpha A] [--out FIT.json] [--plots DIR] [--force] [--json]\n"
           "\n"
           "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
           "(Anderson-Darling A², Kolmogorov-Smirnov D, Cramér-von Mises W²), ranks the\n"
@@ -42,7 +43,15 @@ void cli_fit_help(FILE *out)
           "  --threads K       bootstrap threads (default: all); results do not depend on K\n"
           "  --alpha A         A² rejection level (default 0.05)\n"
           "  --out FIT.json    write the fit record (refuses to overwrite without --force)\n"
-          "  --force           allow --out to replace an existing file\n"
+          "  --plots DIR       draw the fit's charts into DIR (made if missing): for the\n"
+          "                    column, and with --by for each lot and pooled, a histogram\n"
+          "                    with the densities of the chosen family and the two best\n"
+          "                    candidates not rejected, a probability plot of the chosen\n"
+          "                    family with a 95%% pointwise band, the empirical CDF with\n"
+          "                    the fitted CDFs; with --by the lots side by side.  PNG and\n"
+          "                    SVG need gnuplot; without it the .gp scripts and .dat data\n"
+          "                    are written.  'scatterprop plot FIT.json' redraws them\n"
+          "  --force           allow --out and --plots to replace existing files\n"
           "  --json            print the fit record instead of the table\n"
           "  --help            show this help\n"
           "\n"
@@ -207,6 +216,7 @@ static int split_families(const char *list, char **buf, const char ***names, siz
 int cli_fit_run(int argc, char **argv)
 {
   const char *file = NULL, *column = NULL, *by = NULL, *families = NULL, *outpath = NULL;
+  const char *plotdir = NULL;
   int json = 0, force = 0, rc = CLI_OK;
   sp_fit_options o;
   sp_fit_options_init(&o);
@@ -251,6 +261,9 @@ int cli_fit_run(int argc, char **argv)
         rc = cli_usage("fit", "--alpha: must be between 0 and 1, got %s", v);
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--out", &v, &rc)) != 0) {
       if (m > 0) outpath = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--plots", &v, &rc)) != 0) {
+      if (m > 0 && !*v) rc = cli_usage("fit", "--plots: empty folder name");
+      else if (m > 0) plotdir = v;
     } else if (cli_opt_flag(argv, i, "--force")) {
       force = 1;
     } else if (cli_opt_flag(argv, i, "--json")) {
@@ -292,6 +305,10 @@ int cli_fit_run(int argc, char **argv)
   sp_fit_grouped g;
   memset(&g, 0, sizeof g);
   char *text = NULL;
+  sp_fitplot_plan plan;
+  memset(&plan, 0, sizeof plan);
+  sp_fitplot_charts charts;
+  memset(&charts, 0, sizeof charts);
   if (sp_table_read(file, &io, &t, &err) != SP_OK ||
       sp_fit_table(t, column, by, &o, &g, &err) != SP_OK) {
     rc = cli_report(&err);
@@ -313,8 +330,21 @@ int cli_fit_run(int argc, char **argv)
     rc = cli_report(&err);
     goto done;
   }
+  if (plotdir) {
+    sp_plot_options po;
+    char tdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
+    if (sp_fitplot_plan_from_fit(&g, col->name, col->unit_text, by, &plan, &err) != SP_OK ||
+        sp_fitplot_draw(&plan, t, &po, &charts, &err) != SP_OK) {
+      rc = cli_report(&err);
+      if (charts.ndrawn) cli_plot_print(stderr, &charts, plotdir);
+      goto done;
+    }
+  }
   if (json) {
     printf("%s\n", text);
+    /* The JSON text stays alone on stdout. */
+    if (plotdir) cli_plot_print(stderr, &charts, plotdir);
   } else {
     printf("%s: column %s", t->path, col->name);
     if (col->unit_text) printf(" [%s]", col->unit_text);
@@ -332,11 +362,17 @@ int cli_fit_run(int argc, char **argv)
     }
     print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
     if (outpath) printf("\nfit record written to %s\n", outpath);
+    if (plotdir) {
+      printf("\n");
+      cli_plot_print(stdout, &charts, plotdir);
+    }
     printf("\n");
     cli_print_caution(stdout);
   }
   if (g.pooled.chosen < 0) rc = CLI_NUMERIC;
 done:
+  sp_fitplot_charts_free(&charts);
+  sp_fitplot_plan_clear(&plan);
   free(text);
   sp_fit_grouped_clear(&g);
   sp_table_free(t);

@@ -14,6 +14,7 @@ static const cli_command commands[] = {
    cli_fit_run, cli_fit_help},
   {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
    cli_propagate_run, cli_propagate_help},
+  {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
