@@ -82,8 +82,11 @@ int sp_summary_decimals_for(double sd)
 {
   if (!(sd > 0) || !isfinite(sd)) return -1;
   int d = 2 - (int)floor(log10(sd));
+  /* Fixed decimals only where they show the values: more than 12
+   * decimals would print a tiny spread as zeros, and from 1e15 up a double
+   * has no more integer digits to show; -1 asks for 6 significant digits. */
+  if (d > 12 || sd >= 1e15) return -1;
   if (d < 0) d = 0;
-  if (d > 12) d = 12;
   return d;
 }
 
