@@ -266,8 +266,11 @@ int sp_run_decimals(const sp_run *r, size_t j)
   double sem = r->result.out[j].sem;
   if (!(sem > 0) || !isfinite(sem)) return -1;
   int d = 1 - (int)floor(log10(sem));
+  /* Fixed decimals only where they show the value: past 15 decimals the
+   * values would print as zeros, and from 1e15 up a double has no more
+   * integer digits to show; -1 asks for 6 significant digits there. */
+  if (d > 15 || sem >= 1e15) return -1;
   if (d < 0) d = 0;
-  if (d > 15) d = 15;
   return d;
 }
 
