@@ -346,13 +346,6 @@ int cli_propagate_run(int argc, char **argv)
     free(pcts);
     return rc;
   }
-  if (outdir && !mkdir_p(outdir, &err)) {
-    rc = cli_report(&err);
-    sp_run_free(run);
-    free(pcts);
-    return rc;
-  }
-
   progress_state ps = {isatty(2), time(NULL), 0};
   ro.engine.progress = on_progress;
   ro.engine.progress_user = &ps;
@@ -379,6 +372,9 @@ int cli_propagate_run(int argc, char **argv)
 
   char *record = sp_run_record_json(run, &ro, argc, argv, (int64_t)time(NULL), &err);
   if (!record) rc = cli_report(&err);
+  /* The folder is made only now, so that a run refused or failed leaves
+   * nothing behind. */
+  if (rc == CLI_OK && outdir && !mkdir_p(outdir, &err)) rc = cli_report(&err);
   if (rc == CLI_OK && outdir) {
     char path[4096];
     snprintf(path, sizeof path, "%s/run.json", outdir);
