@@ -213,6 +213,9 @@ static void print_limits(FILE *out, const sp_run *run)
     else
       fprintf(out, " (95%% interval %.3g to %.3g, %s)\n", e->lo, e->hi,
               e->one_sided ? "one-sided Clopper-Pearson" : "Wilson score");
+    if (e->n < res->samples)
+      fprintf(out, "    %llu samples whose %s is not finite are left out of this count\n",
+              (unsigned long long)(res->samples - e->n), mo->name);
   }
 }
 
