@@ -212,6 +212,12 @@ sp_status sp_run_memory_needed(const sp_run *r, const sp_run_options *opt, uint6
 sp_status sp_run_execute(sp_run *r, const sp_run_options *opt, sp_error *err)
 {
   const sp_model *m = r->model;
+  /* A model without inputs compiles (its outputs are constants), but has
+   * nothing to propagate: a model error, not the engine's usage error. */
+  if (sp_model_input_count(m) == 0)
+    return sp_fail_at(err, SP_EMODEL, r->path, sp_model_output_at(m, 0)->line, 0,
+                      "the model has no inputs: nothing is uncertain, so there is nothing "
+                      "to propagate");
   size_t nc = sp_model_correlation_count(m), nl = sp_model_limit_count(m);
   sp_engine_corr *corr = calloc(nc ? nc : 1, sizeof *corr);
   sp_engine_limit *lim = calloc(nl ? nl : 1, sizeof *lim);
