@@ -89,8 +89,12 @@ static sp_status resolve_fit(sp_run *r, size_t i, sp_error *err)
   sp_error_clear(&e);
   if (sp_sha256_file(src->path, src->sha256, &src->size, &e) != SP_OK ||
       sp_record_fit_read(src->path, &src->fit, &e) != SP_OK) {
+    /* The record's own position (a JSON syntax error's line and column)
+     * stays in the message. */
+    char inner[SP_ERROR_MSG_MAX + SP_ERROR_FILE_MAX + 64];
+    sp_error_format(&e, inner, sizeof inner);
     *err = e;
-    sp_fail_at(err, e.code, r->path, in->line, 0, "input %s: %s", in->name, e.msg);
+    sp_fail_at(err, e.code, r->path, in->line, 0, "input %s: %.900s", in->name, inner);
     return sp_error_hint(err, "fit(\"...\") paths are relative to the model file's folder; "
                               "write the record with 'scatterprop fit ... --out FILE'");
   }
