@@ -12,6 +12,8 @@
 
 #include <jansson.h>
 
+#include "build_info.h"
+#include "provenance_internal.h"
 
 void sp_record_time_utc(int64_t t, char buf[SP_RECORD_TIME_LEN])
 {
@@ -149,7 +151,12 @@ static json_t *options_obj(wctx *w, const sp_fit_result *r)
   set(w, j, "pvalue_method", str(w, sp_fit_pvalue_mode_name(o->pvalue)));
   set(w, boot, "B", integer(w, (long long)o->bootstrap_B));
   set(w, boot, "seed", seed_json(w, o->seed));
+  set(w, boot, "generator", str(w, sp_provenance_generator()));
+  set(w, boot, "stream_rule",
+      str(w, "replicate b of candidate i: the block stream (seed, b, i) of the rule below"));
+  set(w, boot, "rule", str(w, sp_provenance_stream_rule()));
   set(w, j, "bootstrap", boot);
+  set(w, j, "threads", integer(w, sp_provenance_threads(o->threads)));
   return j;
 }
 
@@ -178,7 +185,7 @@ static void fit_body(wctx *w, json_t *o, const sp_fit_result *r)
 }
 
 static json_t *record_root(wctx *w, const sp_fit_result *r, const sp_record_fit_source *s,
-                           size_t nmissing)
+                           size_t nmissing, int argc, char *const *argv)
 {
   json_t *root = obj(w), *tool = obj(w), *data = obj(w), *meta = arr(w);
   char when[SP_RECORD_TIME_LEN];
@@ -188,8 +195,14 @@ static json_t *record_root(wctx *w, const sp_fit_result *r, const sp_record_fit_
   set(w, tool, "name", str(w, "scatterprop"));
   set(w, tool, "version", str(w, sp_version()));
   set(w, tool, "git", str(w, sp_git_revision()));
+  set(w, tool, "compiler", str(w, sp_build_compiler()));
+  set(w, tool, "gsl", str(w, sp_build_gsl_version()));
+  set(w, tool, "system", str(w, SP_BUILD_SYSTEM));
   set(w, root, "tool", tool);
   set(w, root, "created_utc", str(w, when));
+  json_t *cmd = arr(w);
+  for (int i = 0; argv && i < argc; i++) push(w, cmd, sp_provenance_text(w, argv[i]));
+  set(w, root, "command", cmd);
   set(w, data, "path", str(w, s->path ? s->path : ""));
   set(w, data, "size", integer(w, (long long)s->size));
   set(w, data, "sha256", str(w, s->sha256 ? s->sha256 : ""));
@@ -211,6 +224,12 @@ static json_t *record_root(wctx *w, const sp_fit_result *r, const sp_record_fit_
   return root;
 }
 
+/* The provenance object closes every fit record (after "by"). */
+static void add_provenance(wctx *w, json_t *root)
+{
+  set(w, root, "provenance", sp_provenance_json_object(w));
+}
+
 static sp_status dump(wctx *w, json_t *root, char **out, sp_error *err)
 {
   *out = NULL;
@@ -225,10 +244,17 @@ static sp_status dump(wctx *w, json_t *root, char **out, sp_error *err)
 sp_status sp_record_fit_dumps(const sp_fit_result *r, const sp_record_fit_source *src,
                               char **out, sp_error *err)
 {
+  return sp_record_fit_dumps_cmd(r, src, 0, NULL, out, err);
+}
+
+sp_status sp_record_fit_dumps_cmd(const sp_fit_result *r, const sp_record_fit_source *src,
+                                  int argc, char *const *argv, char **out, sp_error *err)
+{
   if (r->ncand == 0) return sp_fail(err, SP_EUSAGE, "fit record: the fit has no candidates");
   wctx w = {0};
-  json_t *root = record_root(&w, r, src, src->nmissing);
+  json_t *root = record_root(&w, r, src, src->nmissing, argc, argv);
   set(&w, root, "by", json_null());
+  add_provenance(&w, root);
   return dump(&w, root, out, err);
 }
 
@@ -236,10 +262,17 @@ sp_status sp_record_fit_grouped_dumps(const sp_fit_grouped *g,
                                       const sp_record_fit_source *src, char **out,
                                       sp_error *err)
 {
+  return sp_record_fit_grouped_dumps_cmd(g, src, 0, NULL, out, err);
+}
+
+sp_status sp_record_fit_grouped_dumps_cmd(const sp_fit_grouped *g,
+                                          const sp_record_fit_source *src, int argc,
+                                          char *const *argv, char **out, sp_error *err)
+{
   if (g->pooled.ncand == 0)
     return sp_fail(err, SP_EUSAGE, "fit record: the fit has no candidates");
   wctx w = {0};
-  json_t *root = record_root(&w, &g->pooled, src, g->pooled_missing);
+  json_t *root = record_root(&w, &g->pooled, src, g->pooled_missing, argc, argv);
   json_t *by = obj(&w), *lots = arr(&w);
   set(&w, by, "column", str(&w, src->group_column ? src->group_column : ""));
   for (size_t i = 0; i < g->ngroups; i++) {
@@ -261,6 +294,7 @@ sp_status sp_record_fit_grouped_dumps(const sp_fit_grouped *g,
   }
   set(&w, by, "groups", lots);
   set(&w, root, "by", by);
+  add_provenance(&w, root);
   return dump(&w, root, out, err);
 }
 

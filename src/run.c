@@ -8,6 +8,7 @@
 
 #include "build_info.h"
 #include "json_build.h"
+#include "provenance_internal.h"
 
 struct sp_run {
   char *path;
@@ -420,7 +421,7 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   sp_record_time_utc(created, ts);
   set(&w, root, "created_utc", str(&w, ts));
   json_t *cmd = arr(&w);
-  for (int i = 0; i < argc; i++) push(&w, cmd, str(&w, argv[i]));
+  for (int i = 0; i < argc; i++) push(&w, cmd, sp_provenance_text(&w, argv[i]));
   set(&w, root, "command", cmd);
   set(&w, root, "caution", str(&w, sp_caution_text()));
   json_t *model = obj(&w);
@@ -439,8 +440,17 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   set(&w, root, "correlations", corr);
   json_t *o = obj(&w);
   set(&w, o, "method", str(&w, sp_engine_method_name((sp_engine_method)res->method)));
-  set(&w, o, "seed", integer(&w, (long long)res->seed));
+  /* A seed of 2^63 or more does not fit a JSON integer that every reader
+   * takes: it is written as its decimal digits (as in fit records). */
+  if (res->seed <= (uint64_t)INT64_MAX) {
+    set(&w, o, "seed", integer(&w, (long long)res->seed));
+  } else {
+    char sd[24];
+    snprintf(sd, sizeof sd, "%llu", (unsigned long long)res->seed);
+    set(&w, o, "seed", str(&w, sd));
+  }
   set(&w, o, "generator", str(&w, "pcg64 (XSL-RR 128/64), block streams per docs/reproducibility.md"));
+  set(&w, o, "stream_rule", str(&w, sp_provenance_stream_rule()));
   set(&w, o, "samples_requested", integer(&w, (long long)res->requested));
   set(&w, o, "block", integer(&w, (long long)res->block));
   set(&w, o, "replicates", integer(&w, (long long)res->replicates));
@@ -448,6 +458,29 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   set(&w, o, "adaptive_digits", integer(&w, opt->engine.adaptive_digits));
   set(&w, o, "sobol_samples", integer(&w, (long long)opt->sobol_samples));
   set(&w, o, "threads", integer(&w, (long long)res->threads));
+  /* The rest of the resolved engine options, so that a replay can run
+   * exactly this run again (docs/run-record.md). */
+  json_t *extra = arr(&w);
+  for (size_t k = 0; k < opt->engine.npercentiles; k++)
+    push(&w, extra, num(&w, opt->engine.percentiles[k]));
+  set(&w, o, "extra_percentiles", extra);
+  set(&w, o, "histogram_bins", integer(&w, (long long)opt->engine.hist_bins));
+  set(&w, o, "max_samples", integer(&w, (long long)opt->engine.max_samples));
+  set(&w, o, "limit_confidence", num(&w, opt->engine.limit_confidence));
+  set(&w, o, "sobol_bootstrap", integer(&w, (long long)opt->engine.bootstrap));
+  set(&w, o, "index_confidence", num(&w, opt->engine.index_confidence));
+  size_t nout = sp_model_output_count(r->model);
+  json_t *hr = json_null(), *tol = json_null();
+  if (opt->engine.hist_range) {
+    hr = arr(&w);
+    for (size_t k = 0; k < 2 * nout; k++) push(&w, hr, num(&w, opt->engine.hist_range[k]));
+  }
+  if (opt->engine.tolerance) {
+    tol = arr(&w);
+    for (size_t k = 0; k < nout; k++) push(&w, tol, num(&w, opt->engine.tolerance[k]));
+  }
+  set(&w, o, "histogram_range", hr);
+  set(&w, o, "tolerances", tol);
   set(&w, root, "options", o);
   json_t *rs = obj(&w);
   static const char *const status_names[] = {"complete", "cancelled", "not stabilised"};
@@ -480,6 +513,7 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
   }
   set(&w, rs, "limits", lims);
   set(&w, root, "results", rs);
+  set(&w, root, "provenance", sp_provenance_json_object(&w));
   char *txt = w.bad ? NULL : json_dumps(root, REC_DUMP_FLAGS);
   json_decref(root);
   if (!txt) sp_fail(err, SP_ENOMEM, "cannot build the run record (out of memory)");

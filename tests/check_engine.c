@@ -1171,7 +1171,8 @@ START_TEST(test_progress_cancel)
   sp_engine_result full;
   run_ok(in, 2, &ev, &o, &full);
   ck_assert_uint_eq(full.status, SP_ENGINE_COMPLETE);
-  ck_assert(ps.monotone && ps.calls > 1);
+  /* At least one report; more depend on how the two threads interleave. */
+  ck_assert(ps.monotone && ps.calls >= 1);
   ck_assert_uint_eq(ps.last, N);
   ck_assert_uint_eq(ps.total, N);
   sp_engine_result_free(&full);

@@ -61,6 +61,14 @@ sp_status sp_record_fit_dumps(const sp_fit_result *r, const sp_record_fit_source
 sp_status sp_record_fit_grouped_dumps(const sp_fit_grouped *g,
                                       const sp_record_fit_source *src, char **out,
                                       sp_error *err);
+/* The same two, also recording the command line that made the fit
+ * (argc words, the "command" array; argv may be NULL for an empty one).
+ * The plain forms above record an empty command. */
+sp_status sp_record_fit_dumps_cmd(const sp_fit_result *r, const sp_record_fit_source *src,
+                                  int argc, char *const *argv, char **out, sp_error *err);
+sp_status sp_record_fit_grouped_dumps_cmd(const sp_fit_grouped *g,
+                                          const sp_record_fit_source *src, int argc,
+                                          char *const *argv, char **out, sp_error *err);
 /* Writes a record text to path atomically (SP_EIO if path exists and
  * overwrite is 0, or on a write failure). */
 sp_status sp_record_write_text(const char *path, const char *text, int overwrite,

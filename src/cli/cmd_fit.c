@@ -7,6 +7,7 @@
 #include <time.h>
 
 #include "cli.h"
+#include "scatterprop/archive.h"
 #include "scatterprop/dist.h"
 #include "scatterprop/fit.h"
 #include "scatterprop/fitplot.h"
@@ -20,6 +21,7 @@ void cli_fit_help(FILE *out)
           "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
           "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
           "                       [--alpha A] [--out FIT.json] [--plots DIR] [--force] [--json]\n"
+          "                       [--archive DIR]\n"
           "\n"
           "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
           "(Anderson-Darling A², Kolmogorov-Smirnov D, Cramér-von Mises W²), ranks the\n"
@@ -51,7 +53,10 @@ void cli_fit_help(FILE *out)
           "                    the fitted CDFs; with --by the lots side by side.  PNG and\n"
           "                    SVG need gnuplot; without it the .gp scripts and .dat data\n"
           "                    are written.  'scatterprop plot FIT.json' redraws them\n"
-          "  --force           allow --out and --plots to replace existing files\n"
+          "  --force           allow --out, --plots and --archive to replace existing files\n"
+          "  --archive DIR     also copy the data, the record and the charts into the\n"
+          "                    folder DIR, self-contained ('scatterprop replay\n"
+          "                    DIR/fits/NAME.json' works wherever DIR is moved)\n"
           "  --json            print the fit record instead of the table\n"
           "  --help            show this help\n"
           "\n"
@@ -213,9 +218,36 @@ static int split_families(const char *list, char **buf, const char ***names, siz
   return 1;
 }
 
+/* --archive: the record (named as --out names it, else COLUMN.json), its
+ * data and the charts drawn (their files under charts/). */
+static sp_status archive_fit(const char *dir, const char *text, const char *outpath,
+                             const char *column, const sp_fitplot_charts *charts, int force,
+                             sp_error *err)
+{
+  char name[SP_FIT_TEXT_MAX];
+  const char *base = outpath ? strrchr(outpath, '/') : NULL;
+  snprintf(name, sizeof name, "%s%s", outpath ? (base ? base + 1 : outpath) : column,
+           outpath ? "" : ".json");
+  sp_archive_extra *ex = calloc(4 * charts->ncharts + 1, sizeof *ex);
+  if (!ex) return sp_fail(err, SP_ENOMEM, "out of memory");
+  size_t n = 0;
+  for (size_t i = 0; i < charts->ncharts; i++) {
+    const sp_fitplot_chart *c = &charts->charts[i];
+    if (!c->drawn) continue;
+    const char *files[4] = {c->out.data, c->out.script, c->out.rendered ? c->out.png : "",
+                            c->out.rendered ? c->out.svg : ""};
+    for (int k = 0; k < 4; k++)
+      if (files[k][0]) ex[n++] = (sp_archive_extra){files[k], "charts"};
+  }
+  sp_status s = sp_archive_fit(dir, text, name, ex, n, force, err);
+  free(ex);
+  return s;
+}
+
 int cli_fit_run(int argc, char **argv)
 {
   const char *file = NULL, *column = NULL, *by = NULL, *families = NULL, *outpath = NULL;
+  const char *archive = NULL;
   const char *plotdir = NULL;
   int json = 0, force = 0, rc = CLI_OK;
   sp_fit_options o;
@@ -264,6 +296,8 @@ int cli_fit_run(int argc, char **argv)
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--plots", &v, &rc)) != 0) {
       if (m > 0 && !*v) rc = cli_usage("fit", "--plots: empty folder name");
       else if (m > 0) plotdir = v;
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--archive", &v, &rc)) != 0) {
+      if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--force")) {
       force = 1;
     } else if (cli_opt_flag(argv, i, "--json")) {
@@ -317,9 +351,9 @@ int cli_fit_run(int argc, char **argv)
   const sp_column *col = sp_table_column(t, column);
   sp_record_fit_source src = {t->path, t->size, t->sha256, t->meta, t->nmeta, col->name,
                               col->unit_text, by, g.pooled_missing, (int64_t)time(NULL)};
-  if (json || outpath) {
-    sp_status st = by ? sp_record_fit_grouped_dumps(&g, &src, &text, &err)
-                      : sp_record_fit_dumps(&g.pooled, &src, &text, &err);
+  if (json || outpath || archive) {
+    sp_status st = by ? sp_record_fit_grouped_dumps_cmd(&g, &src, argc, argv, &text, &err)
+                      : sp_record_fit_dumps_cmd(&g.pooled, &src, argc, argv, &text, &err);
     if (st != SP_OK) {
       rc = cli_report(&err);
       goto done;
@@ -343,6 +377,10 @@ int cli_fit_run(int argc, char **argv)
       if (charts.ndrawn) cli_plot_print(stderr, &charts, plotdir);
       goto done;
     }
+  }
+  if (archive && archive_fit(archive, text, outpath, column, &charts, force, &err) != SP_OK) {
+    rc = cli_report(&err);
+    goto done;
   }
   if (json) {
     printf("%s\n", text);
@@ -369,6 +407,7 @@ int cli_fit_run(int argc, char **argv)
       printf("\n");
       cli_plot_print(stdout, &charts, plotdir);
     }
+    if (archive) printf("archive written to %s/\n", archive);
     printf("\n");
     cli_print_caution(stdout);
   }

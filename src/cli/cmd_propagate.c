@@ -11,6 +11,7 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "scatterprop/archive.h"
 #include "scatterprop/run.h"
 
 void cli_propagate_help(FILE *out)
@@ -19,7 +20,7 @@ void cli_propagate_help(FILE *out)
           "Usage: scatterprop propagate MODEL.spm [--samples N | --tolerance DIGITS]\n"
           "         [--method mc|lhs|sobol] [--seed S] [--threads K] [--out DIR] [--force]\n"
           "         [--json] [--keep-samples] [--sobol N] [--percentiles LIST]\n"
-          "         [--coverage P] [--bins N] [--dump-bytecode]\n"
+          "         [--coverage P] [--bins N] [--dump-bytecode] [--archive DIR]\n"
           "\n"
           "Propagates the model's inputs (fitted records or stated distributions) through\n"
           "its formulas, and prints for every output: mean with its Monte Carlo standard\n"
@@ -37,7 +38,10 @@ void cli_propagate_help(FILE *out)
           "  --seed S           seed of the random streams (default 1)\n"
           "  --threads K        threads (default: all cores); results do not depend on K\n"
           "  --out DIR          write run.json and the percentile and histogram tables\n"
-          "  --force            allow --out to replace existing files\n"
+          "  --force            allow --out (and --archive) to replace existing files\n"
+          "  --archive DIR      also copy the model, its fit records, their data and the run\n"
+          "                     record into the folder DIR, self-contained\n"
+          "                     ('scatterprop replay DIR/run.json' works wherever it is moved)\n"
           "  --json             print the run record instead of the tables\n"
           "  --keep-samples     with --out, also write every sample (NAME.samples.csv)\n"
           "  --sobol N          also first-order and total Sobol' indices from N base\n"
@@ -236,7 +240,7 @@ static int mkdir_p(const char *dir, sp_error *err)
 
 int cli_propagate_run(int argc, char **argv)
 {
-  const char *model = NULL, *outdir = NULL;
+  const char *model = NULL, *outdir = NULL, *archive = NULL;
   int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0;
   double *pcts = NULL;
   size_t npcts = 0;
@@ -292,6 +296,8 @@ int cli_propagate_run(int argc, char **argv)
         if (u < 1 || u > 100000) rc = cli_usage("propagate", "--bins takes 1 to 100000");
         ro.engine.hist_bins = (size_t)u;
       }
+    } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--archive", &v, &rc)) != 0) {
+      if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--json")) {
       json = 1;
     } else if (cli_opt_flag(argv, i, "--force")) {
@@ -385,6 +391,8 @@ int cli_propagate_run(int argc, char **argv)
         sp_file_write_atomic(path, record, strlen(record), force, &err) != SP_OK)
       rc = cli_report(&err);
   }
+  if (rc == CLI_OK && archive && sp_archive_run(archive, record, NULL, 0, force, &err) != SP_OK)
+    rc = cli_report(&err);
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
@@ -414,6 +422,7 @@ int cli_propagate_run(int argc, char **argv)
       for (size_t j = 0; j < res->noutputs; j++) print_output(stdout, run, j);
       print_limits(stdout, run);
       if (outdir) printf("\nrun record and tables written to %s/\n", outdir);
+      if (archive) printf("archive written to %s/\n", archive);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
       cli_print_caution(stdout);

@@ -15,6 +15,7 @@ static const cli_command commands[] = {
   {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
    cli_propagate_run, cli_propagate_help},
   {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
+  {"replay", "rerun a fit or run record and compare with what it recorded", cli_replay_run, cli_replay_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
