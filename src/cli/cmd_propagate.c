@@ -116,6 +116,7 @@ static int parse_percentiles(const char *list, double **out, size_t *n, int *rc)
   }
   free(buf);
   if (*rc != CLI_OK) { free(v); return 0; }
+  free(*out); /* a repeated --percentiles replaces the earlier list */
   *out = v;
   *n = k;
   return 1;
