@@ -318,6 +318,8 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
       if (st != SP_OK) goto done;
       if (h >= 1) {
         for (size_t o = 0; o < nout; o++)
+          /* allocated and checked above under the same status (not followed):
+           * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
           u_all[o] = engine_moments_sd(&job.tot[o]);
         stable = engine_adaptive_stable(&ad, u_all, opt->adaptive_digits, opt->tolerance, outs);
         if (stable) break;

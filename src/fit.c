@@ -351,6 +351,8 @@ sp_status sp_fit_mle_ws(const sp_family *fam, const double *x, size_t n,
     }
   }
   for (size_t p = 0; p < fam->nparam; p++)
+    /* written before on every path (the loop bounds are not followed):
+     * NOLINTNEXTLINE(clang-analyzer-core.uninitialized.Assign) */
     if (fx[p]) theta[p] = keep[p];
   sp_error e;
   sp_error_clear(&e);
