@@ -801,6 +801,20 @@ done:
   return st;
 }
 
+/* A data error of the fit ("need at least 2 values, got 1") says which
+ * file and column it is about. */
+static sp_status with_column(const sp_table *t, const char *column, sp_status st,
+                             sp_error *err)
+{
+  if (st != SP_EDATA || !err) return st;
+  char msg[SP_ERROR_MSG_MAX], hint[SP_ERROR_MSG_MAX];
+  snprintf(msg, sizeof msg, "%s", err->msg);
+  snprintf(hint, sizeof hint, "%s", err->hint);
+  sp_fail(err, SP_EDATA, "%s: column '%s': %.900s", t->path, column, msg);
+  if (hint[0]) sp_error_hint(err, "%s", hint);
+  return SP_EDATA;
+}
+
 sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
                        const sp_fit_options *opt, sp_fit_grouped *out, sp_error *err)
 {
@@ -824,7 +838,10 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
     if (!g) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
     if (g->kind != SP_COLUMN_TEXT)
       return sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
-    return sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o, out, err);
+    return with_column(t, column,
+                       sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o,
+                                          out, err),
+                       err);
   }
   double *v = malloc((c->n ? c->n : 1) * sizeof *v);
   if (!v) return sp_fit_fail_nomem(err);
@@ -835,5 +852,5 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
   }
   sp_status st = sp_fit_run(v, m, &o, &out->pooled, err);
   free(v);
-  return st;
+  return with_column(t, column, st, err);
 }
