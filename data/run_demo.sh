@@ -30,6 +30,11 @@ step "6. Fit the coil diameter, the shear modulus (by lot) and the assembly load
 
 step "7. Propagate the measured scatter through the spring model (data/spring.spm)"
 cp "$DATA/spring.spm" "$OUT/spring.spm"
-"$SP" propagate "$OUT/spring.spm" --samples 1000000 --seed 20261201 --out "$OUT/run" --force
+"$SP" propagate "$OUT/spring.spm" --samples 1000000 --seed 20261201 --out "$OUT/run" \
+  --plots "$OUT/plots" --force
 
-printf '\nDemo finished. Fit records: %s/fits/, run record and tables: %s/run/\n' "$OUT" "$OUT"
+step "8. The report: provenance, data, fits, model, results, limits, sensitivity"
+"$SP" report "$OUT/run/run.json" --force
+
+printf '\nDemo finished. Fit records: %s/fits/, run record and tables: %s/run/,\n' "$OUT" "$OUT"
+printf 'charts: %s/plots/, report: %s/run/report.html\n' "$OUT" "$OUT"

@@ -10,6 +10,11 @@ set xlabel sp_xlabel
 set ylabel sp_ylabel
 set logscale x
 set autoscale xfix
+# Room above and below the lines so none sits on the border; sample counts
+# as plain integers (1000, 1e6 would read as 1e+06).
+set offsets graph 0, graph 0, graph 0.05, graph 0.05
+set format x '%.0f'
+set rmargin 6
 # The key goes below the axis label, out of the data's way.
 set key outside bottom center horizontal
 set bmargin 5.5

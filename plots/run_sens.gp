@@ -9,13 +9,14 @@
 @STYLE@
 set xlabel sp_xlabel
 set xrange [0:sp_xmax]
+set xtics 0, 20, 100
 set yrange [ninputs + 0.7:0.3]
 set ytics scale 0 ()
 do for [i = 1:ninputs] { set ytics add (input_name[i] i) }
 set grid noytics
 # The key goes below the axis label, out of the data's way.
 set key outside bottom center horizontal
-set bmargin 5.5
+set bmargin 6.5
 
 set terminal pngcairo size sp_width, sp_height font sp_font noenhanced background rgb 'white'
 set output sp_stem . '.png'

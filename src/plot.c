@@ -1472,8 +1472,9 @@ sp_status sp_plot_run_sensitivity(const sp_plot_sensitivity *spec, const sp_plot
   ch_int(&c, "has_total", spec->share_total != NULL);
   ch_str(&c, "total_title",
          spec->measure_total && *spec->measure_total ? spec->measure_total : "second measure");
-  /* Room right of the longest bar for its value, within 0..100 %. */
-  ch_num(&c, "sp_xmax", fmin(100.0, ceil(100.0 * vmax * 1.2 / 5.0) * 5.0 + 5.0));
+  /* Room right of the longest bar for its value label (up to 115 % so a
+   * bar near 100 % keeps its label; the axis tics stop at 100). */
+  ch_num(&c, "sp_xmax", fmin(115.0, ceil(100.0 * vmax * 1.2 / 5.0) * 5.0 + 5.0));
   ch_block(&c, "inputs by rank", "rank share share_total label_at");
   for (size_t r = 0; r < n; r++) {
     double sh = spec->share[order[r]];

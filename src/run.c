@@ -559,14 +559,15 @@ static sp_status write_table(const char *dir, const char *name, const char *kind
   return sp_outfile_commit(f, err);
 }
 
-sp_status sp_run_write_tables(const sp_run *r, const char *dir, int overwrite, sp_error *err)
+sp_status sp_run_write_tables(const sp_run *r, const char *dir, int with_samples, int overwrite,
+                              sp_error *err)
 {
   if (!r->executed) return sp_fail(err, SP_EUSAGE, "sp_run_write_tables: no results yet");
   for (size_t j = 0; j < r->result.noutputs; j++) {
     const char *name = sp_model_output_at(r->model, j)->name;
     sp_status s = write_table(dir, name, "percentiles", overwrite, r, j, err);
     if (s == SP_OK) s = write_table(dir, name, "histogram", overwrite, r, j, err);
-    if (s == SP_OK && r->result.samples_kept)
+    if (s == SP_OK && with_samples && r->result.samples_kept)
       s = write_table(dir, name, "samples", overwrite, r, j, err);
     if (s != SP_OK) return s;
   }

@@ -258,7 +258,7 @@ START_TEST(test_tables_atomic_and_refused)
   execute_ok(r, &o);
   sp_error err;
   sp_error_clear(&err);
-  ck_assert_int_eq(sp_run_write_tables(r, dir, 0, &err), SP_OK);
+  ck_assert_int_eq(sp_run_write_tables(r, dir, 1, 0, &err), SP_OK);
   char path[600];
   snprintf(path, sizeof path, "%s/y.percentiles.csv", dir);
   FILE *fp = fopen(path, "r");
@@ -282,12 +282,12 @@ START_TEST(test_tables_atomic_and_refused)
   struct stat st;
   ck_assert_int_eq(stat(path, &st), 0);
   /* A second write without overwrite is refused and leaves no temp file. */
-  ck_assert_int_eq(sp_run_write_tables(r, dir, 0, &err), SP_EIO);
+  ck_assert_int_eq(sp_run_write_tables(r, dir, 1, 0, &err), SP_EIO);
   ck_assert_ptr_nonnull(strstr(err.msg, "refusing to overwrite"));
   char cmd[700];
   snprintf(cmd, sizeof cmd, "ls '%s' | grep -q tmp-", dir);
   ck_assert_int_ne(system(cmd), 0);
-  ck_assert_int_eq(sp_run_write_tables(r, dir, 1, &err), SP_OK);
+  ck_assert_int_eq(sp_run_write_tables(r, dir, 1, 1, &err), SP_OK);
   sp_run_free(r);
 }
 END_TEST

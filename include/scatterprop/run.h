@@ -84,9 +84,11 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
                          char *const *argv, int64_t created, sp_error *err);
 
 /* Writes, for every output NAME, NAME.percentiles.csv and NAME.histogram.csv
- * (and NAME.samples.csv when samples were kept) into dir, each atomically;
- * existing files are refused unless overwrite. */
-sp_status sp_run_write_tables(const sp_run *r, const char *dir, int overwrite, sp_error *err);
+ * (and NAME.samples.csv when with_samples is non-zero and samples were
+ * kept) into dir, each atomically; existing files are refused unless
+ * overwrite. */
+sp_status sp_run_write_tables(const sp_run *r, const char *dir, int with_samples, int overwrite,
+                              sp_error *err);
 
 #ifdef __cplusplus
 }

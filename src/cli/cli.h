@@ -52,6 +52,8 @@ int cli_propagate_run(int argc, char **argv);
 void cli_propagate_help(FILE *out);
 int cli_fit_run(int argc, char **argv);
 void cli_fit_help(FILE *out);
+int cli_report_run(int argc, char **argv);
+void cli_report_help(FILE *out);
 int cli_replay_run(int argc, char **argv);
 void cli_replay_help(FILE *out);
 int cli_plot_run(int argc, char **argv);

@@ -13,6 +13,7 @@
 #include "cli.h"
 #include "scatterprop/archive.h"
 #include "scatterprop/run.h"
+#include "scatterprop/runplot.h"
 
 void cli_propagate_help(FILE *out)
 {
@@ -20,7 +21,8 @@ void cli_propagate_help(FILE *out)
           "Usage: scatterprop propagate MODEL.spm [--samples N | --tolerance DIGITS]\n"
           "         [--method mc|lhs|sobol] [--seed S] [--threads K] [--out DIR] [--force]\n"
           "         [--json] [--keep-samples] [--sobol N] [--percentiles LIST]\n"
-          "         [--coverage P] [--bins N] [--dump-bytecode] [--archive DIR]\n"
+          "         [--coverage P] [--bins N] [--plots DIR] [--dump-bytecode]\n"
+          "         [--archive DIR]\n"
           "\n"
           "Propagates the model's inputs (fitted records or stated distributions) through\n"
           "its formulas, and prints for every output: mean with its Monte Carlo standard\n"
@@ -49,6 +51,9 @@ void cli_propagate_help(FILE *out)
           "  --percentiles LIST extra percentiles, comma-separated (e.g. 0.01,99.99)\n"
           "  --coverage P       coverage probability of the intervals (default 0.95)\n"
           "  --bins N           histogram bins (default 50)\n"
+          "  --plots DIR        draw every output's charts into DIR with gnuplot: histogram,\n"
+          "                     exceedance, sensitivity, convergence, scatter against the\n"
+          "                     most influential input (keeps the samples in memory)\n"
           "  --dump-bytecode    print the compiled model and stop\n"
           "  --help             show this help\n"
           "\n"
@@ -241,6 +246,55 @@ static void print_limits(FILE *out, const sp_run *run)
   }
 }
 
+/* Draws the run's charts into dir. */
+static int draw_plots(const sp_run *run, const char *dir, int force, sp_runplot_set *set)
+{
+  sp_error err;
+  sp_error_clear(&err);
+  char tdir[SP_PLOT_PATH_MAX];
+  sp_runplot_options po;
+  sp_runplot_options_init(&po);
+  cli_plot_options(&po.plot, dir, force, tdir, sizeof tdir);
+  return sp_runplot_draw(run, &po, set, &err) == SP_OK ? CLI_OK : cli_report(&err);
+}
+
+/* Archives the run with its charts (data, script and pictures of each). */
+static sp_status archive_run(const char *dir, const char *record, const sp_runplot_set *set,
+                             int force, sp_error *err)
+{
+  sp_archive_extra *ex = calloc(4 * set->ncharts + 1, sizeof *ex);
+  if (!ex) return sp_fail(err, SP_ENOMEM, "out of memory");
+  size_t n = 0;
+  for (size_t i = 0; i < set->ncharts; i++) {
+    const sp_runplot_chart *c = &set->charts[i];
+    if (!c->drawn) continue;
+    const char *files[4] = {c->out.data, c->out.script, c->out.rendered ? c->out.png : "",
+                            c->out.rendered ? c->out.svg : ""};
+    for (int k = 0; k < 4; k++)
+      if (files[k][0]) ex[n++] = (sp_archive_extra){files[k], "charts"};
+  }
+  sp_status s = sp_archive_run(dir, record, ex, n, force, err);
+  free(ex);
+  return s;
+}
+
+/* Says where the charts are, and the hint when gnuplot was not found. */
+static void print_plots(FILE *out, const sp_runplot_set *set, const char *dir)
+{
+  fprintf(out, "\ncharts: %zu drawn into %s/ (%zu rendered to PNG and SVG)\n", set->ndrawn,
+          dir, set->nrendered);
+  int hinted = 0;
+  for (size_t k = 0; k < set->ncharts; k++) {
+    const sp_runplot_chart *c = &set->charts[k];
+    if (c->drawn && !c->out.rendered && !hinted) {
+      fprintf(out, "  %s\n", c->note);
+      hinted = 1;
+    } else if (!c->drawn && c->kind != SP_RUNPLOT_SOBOL) {
+      fprintf(out, "  %s\n", c->note);
+    }
+  }
+}
+
 static int mkdir_p(const char *dir, sp_error *err)
 {
   struct stat st;
@@ -258,8 +312,8 @@ static int mkdir_p(const char *dir, sp_error *err)
 
 int cli_propagate_run(int argc, char **argv)
 {
-  const char *model = NULL, *outdir = NULL, *archive = NULL;
-  int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0;
+  const char *model = NULL, *outdir = NULL, *plotdir = NULL, *archive = NULL;
+  int rc = CLI_OK, json = 0, force = 0, dump = 0, have_samples = 0, keep_samples = 0;
   double *pcts = NULL;
   size_t npcts = 0;
   sp_run_options ro;
@@ -314,6 +368,8 @@ int cli_propagate_run(int argc, char **argv)
         if (u < 1 || u > 100000) rc = cli_usage("propagate", "--bins takes 1 to 100000");
         ro.engine.hist_bins = (size_t)u;
       }
+    } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--plots", &v, &rc)) != 0) {
+      if (m > 0) plotdir = v;
     } else if ((m = cli_opt_value("propagate", argc, argv, &i, "--archive", &v, &rc)) != 0) {
       if (m > 0) archive = v;
     } else if (cli_opt_flag(argv, i, "--json")) {
@@ -321,7 +377,7 @@ int cli_propagate_run(int argc, char **argv)
     } else if (cli_opt_flag(argv, i, "--force")) {
       force = 1;
     } else if (cli_opt_flag(argv, i, "--keep-samples")) {
-      ro.engine.keep_samples = 1;
+      keep_samples = 1;
     } else if (cli_opt_flag(argv, i, "--dump-bytecode")) {
       dump = 1;
     } else if (argv[i][0] == '-' && argv[i][1] != '\0') {
@@ -335,11 +391,27 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK && !model) rc = cli_usage("propagate", "no model file given");
   if (rc == CLI_OK && have_samples && ro.engine.adaptive_digits)
     rc = cli_usage("propagate", "give --samples or --tolerance, not both");
-  if (rc == CLI_OK && ro.engine.keep_samples && !outdir)
+  if (rc == CLI_OK && keep_samples && !outdir)
     rc = cli_usage("propagate", "--keep-samples needs --out DIR");
   if (rc != CLI_OK) { free(pcts); return rc; }
   ro.engine.percentiles = pcts;
   ro.engine.npercentiles = npcts;
+  /* The charts need every sample too; only --keep-samples writes them out. */
+  ro.engine.keep_samples = keep_samples || plotdir != NULL;
+  /* Refuse an existing record before the run, not after it. */
+  if (outdir && !force) {
+    char rp[4096];
+    struct stat rst;
+    snprintf(rp, sizeof rp, "%s/run.json", outdir);
+    if (stat(rp, &rst) == 0) {
+      sp_error e;
+      sp_error_clear(&e);
+      sp_fail(&e, SP_EIO, "%s: file exists; refusing to overwrite it", rp);
+      sp_error_hint(&e, "give --force to replace the run's files, or choose another --out");
+      free(pcts);
+      return cli_report(&e);
+    }
+  }
 
   sp_error err;
   sp_error_clear(&err);
@@ -405,15 +477,20 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK && outdir) {
     char path[4096];
     snprintf(path, sizeof path, "%s/run.json", outdir);
-    if (sp_run_write_tables(run, outdir, force, &err) != SP_OK ||
+    if (sp_run_write_tables(run, outdir, keep_samples, force, &err) != SP_OK ||
         sp_file_write_atomic(path, record, strlen(record), force, &err) != SP_OK)
       rc = cli_report(&err);
   }
-  if (rc == CLI_OK && archive && sp_archive_run(archive, record, NULL, 0, force, &err) != SP_OK)
+  sp_runplot_set plots;
+  memset(&plots, 0, sizeof plots);
+  if (rc == CLI_OK && plotdir && !mkdir_p(plotdir, &err)) rc = cli_report(&err);
+  if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
+  if (rc == CLI_OK && archive && archive_run(archive, record, &plots, force, &err) != SP_OK)
     rc = cli_report(&err);
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
+      if (plotdir) print_plots(stderr, &plots, plotdir);
     } else {
       const sp_engine_result *res = sp_run_result(run);
       const sp_model *m = sp_run_model(run);
@@ -440,12 +517,14 @@ int cli_propagate_run(int argc, char **argv)
       for (size_t j = 0; j < res->noutputs; j++) print_output(stdout, run, j);
       print_limits(stdout, run);
       if (outdir) printf("\nrun record and tables written to %s/\n", outdir);
+      if (plotdir) print_plots(stdout, &plots, plotdir);
       if (archive) printf("archive written to %s/\n", archive);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
       cli_print_caution(stdout);
     }
   }
+  sp_runplot_set_clear(&plots);
   free(record);
   sp_run_free(run);
   free(pcts);

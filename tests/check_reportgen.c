@@ -1,0 +1,568 @@
+/* Tests of the report generator: key figures of a real run in the page,
+ * hostile text escaped, every changed or bad input refused with a message
+ * that names it (both hashes for a changed file), the repeated run
+ * compared with the record, charts from a --plots folder, and the report
+ * command's exit codes.  The fit records and the run record are made by
+ * the scatterprop executable, as a user makes them. */
+#include <dirent.h>
+#include <jansson.h>
+#include <stdarg.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <gsl/gsl_cdf.h>
+
+#include "scatterprop/plot.h"
+#include "scatterprop/reportgen.h"
+#include "sp_test.h"
+
+#define HOSTILE_COLUMN "<script>alert(1)</script>"
+#define HOSTILE_LOT "\"><img src=x onerror=alert(1)>"
+#define HOSTILE_OUTPUT "<svg onload=alert(2)>"
+
+static char dir[] = "/tmp/sp_reportgen_XXXXXX";
+static char *out_text, *err_text;
+
+static const char *path_in(const char *name)
+{
+  static char path[4][1024];
+  static int k;
+  k = (k + 1) % 4;
+  snprintf(path[k], sizeof path[k], "%s/%s", dir, name);
+  return path[k];
+}
+
+static char *slurp(const char *path)
+{
+  FILE *fp = fopen(path, "rb");
+  if (!fp) return NULL;
+  fseek(fp, 0, SEEK_END);
+  long n = ftell(fp);
+  fseek(fp, 0, SEEK_SET);
+  char *s = malloc((size_t)n + 1);
+  ck_assert_ptr_nonnull(s);
+  size_t got = fread(s, 1, (size_t)n, fp);
+  s[got] = '\0';
+  fclose(fp);
+  return s;
+}
+
+static void write_file(const char *name, const char *text)
+{
+  FILE *fp = fopen(path_in(name), "wb");
+  ck_assert_ptr_nonnull(fp);
+  fputs(text, fp);
+  fclose(fp);
+}
+
+/* Runs the scatterprop executable in dir; returns its exit code and keeps
+ * its stdout and stderr in out_text and err_text. */
+static int cli(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
+static int cli(const char *fmt, ...)
+{
+  char args[4096], cmd[8192];
+  va_list ap;
+  va_start(ap, fmt);
+  vsnprintf(args, sizeof args, fmt, ap);
+  va_end(ap);
+  snprintf(cmd, sizeof cmd, "cd '%s' && '%s' %s >out.txt 2>err.txt </dev/null", dir,
+           SP_CLI_PATH, args);
+  int st = system(cmd);
+  free(out_text);
+  free(err_text);
+  out_text = slurp(path_in("out.txt"));
+  err_text = slurp(path_in("err.txt"));
+  ck_assert_msg(WIFEXITED(st), "command did not exit normally: %s", cmd);
+  return WEXITSTATUS(st);
+}
+
+#define ASSERT_HAS(text, want)                                                               \
+  ck_assert_msg((text) && strstr((text), (want)), "text lacks '%s':\n%.300s", (want),       \
+                (text) ? (text) : "(none)")
+#define ASSERT_LACKS(text, bad)                                                              \
+  ck_assert_msg(!strstr((text), (bad)), "text holds '%s'", (bad))
+
+/* The data: 40 readings, the normal(10, 0.2) quantiles at (i + 0.5)/40 in
+ * a scrambled order (i * 17 mod 40), in two lots; the header and one lot
+ * id are hostile. */
+static void write_data(void)
+{
+  FILE *fp = fopen(path_in("d.csv"), "wb");
+  ck_assert_ptr_nonnull(fp);
+  fprintf(fp, "# gauge: <b>G-1</b>\npart,lot,%s [mm]\n", HOSTILE_COLUMN);
+  for (int i = 0; i < 40; i++) {
+    int k = (i * 17) % 40;
+    double x = 10 + 0.2 * gsl_cdf_ugaussian_Pinv((k + 0.5) / 40);
+    fprintf(fp, "P%02d,%s,%.4f\n", i, i < 20 ? "A" : "\"\"\"><img src=x onerror=alert(1)>\"",
+            x);
+  }
+  fclose(fp);
+}
+
+static void setup(void)
+{
+  ck_assert_ptr_nonnull(mkdtemp(dir));
+  write_data();
+  /* The data path is given relative to dir (the folder the fit runs in). */
+  ck_assert_int_eq(cli("fit d.csv --column '%s' --by lot --families normal,lognormal "
+                       "--out fit.json",
+                       HOSTILE_COLUMN),
+                   0);
+  write_file("m.spm", "# <b>model</b> & \"quotes\" <script>alert(3)</script>\n"
+                      "input a [mm] ~ fit(\"fit.json\")\n"
+                      "input b [mm] ~ uniform(min=0, max=1)\n"
+                      "output y [mm] = a + 2*b\n"
+                      "limit y < 11.5 [mm]\n");
+  ck_assert_int_eq(cli("propagate '%s' --samples 20000 --seed 777 --out run", path_in("m.spm")),
+                   0);
+}
+
+static void teardown(void)
+{
+  char cmd[256];
+  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+  ck_assert_int_eq(system(cmd), 0);
+  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
+  free(out_text);
+  free(err_text);
+  out_text = err_text = NULL;
+}
+
+/* Options without rendering (the charts' data and scripts are still made;
+ * rendering is the subject of test_charts_embedded).  out is copied:
+ * path_in's buffers are reused. */
+static void options(sp_reportgen_options *o, const char *out)
+{
+  static char out_buf[1024];
+  sp_reportgen_options_init(o);
+  if (out) snprintf(out_buf, sizeof out_buf, "%s", out);
+  o->out = out ? out_buf : NULL;
+  o->gnuplot = "";
+  o->template_dir = SP_SOURCE_DIR "/plots";
+  o->created = "2026-12-01T00:00:00Z";
+  o->command = "scatterprop report run/run.json";
+}
+
+/* The report of run/run.json written from dir (the records' relative
+ * paths are relative to it, as for a user). */
+static sp_status report(const sp_reportgen_options *o, sp_reportgen_result *res, sp_error *err)
+{
+  char cwd[1024];
+  ck_assert_ptr_nonnull(getcwd(cwd, sizeof cwd));
+  ck_assert_int_eq(chdir(dir), 0);
+  sp_error_clear(err);
+  sp_status st = sp_reportgen_write(path_in("run/run.json"), o, res, err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  return st;
+}
+
+static json_t *load_record(void)
+{
+  json_error_t je;
+  json_t *r = json_load_file(path_in("run/run.json"), 0, &je);
+  ck_assert_ptr_nonnull(r);
+  return r;
+}
+
+static void save_record(json_t *r)
+{
+  ck_assert_int_eq(json_dump_file(r, path_in("run/run.json"), JSON_REAL_PRECISION(17)), 0);
+  json_decref(r);
+}
+
+/* Entries of a folder other than . and .. */
+static size_t entries(const char *path)
+{
+  DIR *d = opendir(path);
+  ck_assert_ptr_nonnull(d);
+  size_t n = 0;
+  struct dirent *e;
+  while ((e = readdir(d)) != NULL) n += strcmp(e->d_name, ".") != 0 && strcmp(e->d_name, "..") != 0;
+  closedir(d);
+  return n;
+}
+
+START_TEST(test_key_figures)
+{
+  /* The charts' temporary folder is made in $TMPDIR: a private one here. */
+  static char tmp[1024];
+  snprintf(tmp, sizeof tmp, "%s", path_in("tmp"));
+  ck_assert_int_eq(mkdir(tmp, 0755), 0);
+  ck_assert_int_eq(setenv("TMPDIR", tmp, 1), 0);
+  sp_reportgen_options o;
+  options(&o, NULL);
+  sp_reportgen_result res;
+  sp_error err;
+  sp_status st = report(&o, &res, &err);
+  ck_assert_msg(st == SP_OK, "report: %s (%s)", err.msg, err.hint);
+  ck_assert_int_eq(res.rerun, 1);
+  /* Default path: report.html beside the run record. */
+  ck_assert_str_eq(res.path, path_in("run/report.html"));
+  char *html = slurp(res.path);
+  ck_assert_ptr_nonnull(html);
+  /* The figures as the record holds them, formatted here from the record
+   * by the documented rule (decimals: two significant digits of sem). */
+  json_t *r = load_record();
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  double mean = json_number_value(json_object_get(y, "mean"));
+  double sem = json_number_value(json_object_get(y, "sem"));
+  int dec = 1 - (int)floor(log10(sem));
+  char want[128];
+  snprintf(want, sizeof want, "%.*f \xc2\xb1 %.*f", dec, mean, dec, sem);
+  ASSERT_HAS(html, want);
+  json_t *lim = json_array_get(json_object_get(json_object_get(r, "results"), "limits"), 0);
+  snprintf(want, sizeof want, "%.4g", json_number_value(json_object_get(lim, "p_violation")));
+  ASSERT_HAS(html, want);
+  ASSERT_HAS(html, "777"); /* the seed */
+  ASSERT_HAS(html, json_string_value(json_object_get(json_object_get(r, "model"), "sha256")));
+  json_decref(r);
+  /* Every input file's SHA-256, computed here. */
+  static const char *const files[] = {"m.spm", "fit.json", "d.csv", "run/run.json"};
+  for (int i = 0; i < 4; i++) {
+    char h[SP_SHA256_HEX_LEN];
+    ck_assert_int_eq(sp_sha256_file(path_in(files[i]), h, NULL, NULL), SP_OK);
+    ASSERT_HAS(html, h);
+  }
+  ASSERT_HAS(html, sp_caution_text());
+  ASSERT_HAS(html, "scatterprop report run/run.json");
+  /* Without gnuplot every figure carries the note instead of a chart. */
+  ck_assert_uint_gt(res.nfigures, 5);
+  ck_assert_uint_eq(res.nembedded, 0);
+  ASSERT_HAS(res.note, "gnuplot");
+  ASSERT_HAS(html, "gnuplot was not found");
+  free(html);
+  /* The temporary chart folder is gone. */
+  ck_assert_uint_eq(entries(tmp), 0);
+  /* An existing report is kept unless overwrite. */
+  ck_assert_int_eq(report(&o, &res, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "exists");
+  o.overwrite = 1;
+  ck_assert_int_eq(report(&o, &res, &err), SP_OK);
+  ck_assert_uint_eq(entries(tmp), 0);
+  unsetenv("TMPDIR");
+}
+END_TEST
+
+START_TEST(test_hostile_text_is_escaped)
+{
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  sp_reportgen_result res;
+  sp_error err;
+  ck_assert_int_eq(report(&o, &res, &err), SP_OK);
+  char *html = slurp(path_in("r.html"));
+  ASSERT_HAS(html, "&lt;script&gt;alert(1)&lt;/script&gt;");
+  ASSERT_HAS(html, "&quot;&gt;&lt;img src=x onerror=alert(1)&gt;");
+  ASSERT_HAS(html, "&lt;b&gt;G-1&lt;/b&gt;");
+  ASSERT_HAS(html, "# &lt;b&gt;model&lt;/b&gt; &amp; &quot;quotes&quot;");
+  ASSERT_LACKS(html, "<script");
+  ASSERT_LACKS(html, "<img");
+  ASSERT_LACKS(html, "<b>");
+  free(html);
+  /* A run record edited to carry a hostile output name: the repeated run
+   * notices the name differs ... */
+  json_t *r = load_record();
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_set_new(y, "name", json_string(HOSTILE_OUTPUT));
+  save_record(r);
+  o.overwrite = 1;
+  ck_assert_int_eq(report(&o, &res, &err), SP_EDIFFERS);
+  ASSERT_HAS(err.msg, "results.outputs[0].name");
+  /* ... and with charts from a folder (no repeated run) it is shown as
+   * text. */
+  static char empty[1024];
+  snprintf(empty, sizeof empty, "%s", path_in("empty"));
+  ck_assert_int_eq(mkdir(empty, 0755), 0);
+  o.plots_dir = empty;
+  sp_status st = report(&o, &res, &err);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  ck_assert_int_eq(res.rerun, 0);
+  html = slurp(path_in("r.html"));
+  ASSERT_HAS(html, "&lt;svg onload=alert(2)&gt;");
+  ASSERT_LACKS(html, "<svg onload");
+  ASSERT_HAS(html, "Not found: ");
+  free(html);
+}
+END_TEST
+
+START_TEST(test_tampered_data_is_refused)
+{
+  char before[SP_SHA256_HEX_LEN], after[SP_SHA256_HEX_LEN];
+  ck_assert_int_eq(sp_sha256_file(path_in("d.csv"), before, NULL, NULL), SP_OK);
+  /* One reading changed after the fit. */
+  char *text = slurp(path_in("d.csv"));
+  char *p = strstr(text, "P07,");
+  ck_assert_ptr_nonnull(p);
+  p = strchr(p, '\n') - 1;
+  *p = *p == '9' ? '8' : '9';
+  write_file("d.csv", text);
+  free(text);
+  ck_assert_int_eq(sp_sha256_file(path_in("d.csv"), after, NULL, NULL), SP_OK);
+  ck_assert_str_ne(before, after);
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  sp_error err;
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "d.csv");
+  ASSERT_HAS(err.msg, before);
+  ASSERT_HAS(err.msg, after);
+  ck_assert_int_ne(access(path_in("r.html"), F_OK), 0);
+  /* The command says the same and exits 3. */
+  ck_assert_int_eq(cli("report run/run.json"), 3);
+  ASSERT_HAS(err_text, before);
+  ASSERT_HAS(err_text, after);
+}
+END_TEST
+
+START_TEST(test_changed_fit_record_and_model_are_refused)
+{
+  char rec[SP_SHA256_HEX_LEN], now[SP_SHA256_HEX_LEN];
+  ck_assert_int_eq(sp_sha256_file(path_in("fit.json"), rec, NULL, NULL), SP_OK);
+  char *text = slurp(path_in("fit.json"));
+  write_file("fit.json", text);
+  FILE *fp = fopen(path_in("fit.json"), "ab");
+  fputs("\n", fp);
+  fclose(fp);
+  ck_assert_int_eq(sp_sha256_file(path_in("fit.json"), now, NULL, NULL), SP_OK);
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  sp_error err;
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "fit record");
+  ASSERT_HAS(err.msg, rec);
+  ASSERT_HAS(err.msg, now);
+  write_file("fit.json", text);
+  free(text);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_OK);
+  /* The model changed: a comment added. */
+  text = slurp(path_in("m.spm"));
+  char *more = malloc(strlen(text) + 16);
+  sprintf(more, "%s# edited\n", text);
+  write_file("m.spm", more);
+  free(more);
+  o.overwrite = 1;
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "model");
+  ASSERT_HAS(err.msg, "changed since the run");
+  write_file("m.spm", text);
+  free(text);
+}
+END_TEST
+
+START_TEST(test_repeated_run_must_match)
+{
+  /* One recorded figure moved by one unit in the last place. */
+  json_t *r = load_record();
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  double sd = json_number_value(json_object_get(y, "sd"));
+  json_object_set_new(y, "sd", json_real(nextafter(sd, INFINITY)));
+  save_record(r);
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  sp_error err;
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDIFFERS);
+  ASSERT_HAS(err.msg, "results.outputs[0].sd");
+  ASSERT_HAS(err.hint, "--plots");
+  ck_assert_int_eq(cli("report run/run.json"), 1);
+  /* A histogram count. */
+  r = load_record();
+  y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_set_new(y, "sd", json_real(sd));
+  json_t *cnt = json_object_get(json_object_get(y, "histogram"), "counts");
+  json_array_set_new(cnt, 7, json_integer(json_integer_value(json_array_get(cnt, 7)) + 1));
+  save_record(r);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDIFFERS);
+  ASSERT_HAS(err.msg, "histogram.counts[7]");
+}
+END_TEST
+
+START_TEST(test_bad_records)
+{
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  sp_error err;
+  sp_error_clear(&err);
+  ck_assert_int_eq(sp_reportgen_write(path_in("none.json"), &o, NULL, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "none.json");
+  write_file("bad.json", "{\"format\": ");
+  ck_assert_int_eq(sp_reportgen_write(path_in("bad.json"), &o, NULL, &err), SP_EDATA);
+  ck_assert_int_eq(sp_reportgen_write(path_in("fit.json"), &o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "scatterprop-fit");
+  /* Each case edits the original record. */
+  char *orig = slurp(path_in("run/run.json"));
+  json_t *r = load_record();
+  json_object_set_new(r, "version", json_integer(2));
+  save_record(r);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "version 2");
+  write_file("run/run.json", orig);
+  r = load_record();
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_set_new(y, "mean", json_string("big"));
+  save_record(r);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "'results.outputs[0].mean' must be a number");
+  write_file("run/run.json", orig);
+  r = load_record();
+  y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_del(y, "percentiles");
+  save_record(r);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "'results.outputs[0].percentiles' is missing");
+  /* The model text no longer matches its hash. */
+  write_file("run/run.json", orig);
+  r = load_record();
+  json_t *m = json_object_get(r, "model");
+  json_object_set_new(m, "text", json_string("output y [mm] = 1 [mm]\n"));
+  save_record(r);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "model text");
+  /* The original record still makes a report. */
+  write_file("run/run.json", orig);
+  free(orig);
+  ck_assert_int_eq(report(&o, NULL, &err), SP_OK);
+}
+END_TEST
+
+START_TEST(test_charts_embedded)
+{
+  sp_plot_options po;
+  sp_plot_options_init(&po);
+  char gp[4096];
+  if (!sp_plot_gnuplot_found(&po, gp, sizeof gp)) return; /* nothing to embed without it */
+  sp_reportgen_options o;
+  options(&o, path_in("r.html"));
+  o.gnuplot = NULL;
+  sp_reportgen_result res;
+  sp_error err;
+  sp_status st = report(&o, &res, &err);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  ck_assert_uint_eq(res.nembedded, res.nfigures);
+  ck_assert_str_eq(res.note, "");
+  char *html = slurp(path_in("r.html"));
+  size_t n = 0;
+  for (const char *p = html; (p = strstr(p, "<svg class=\"chart\"")) != NULL; p++) n++;
+  ck_assert_uint_eq(n, res.nfigures);
+  free(html);
+  /* Charts from a --plots folder: embedded from there, no repeated run. */
+  ck_assert_int_eq(cli("propagate '%s' --samples 20000 --seed 777 --out run --force "
+                       "--plots pl",
+                       path_in("m.spm")),
+                   0);
+  static char pl[1024];
+  snprintf(pl, sizeof pl, "%s", path_in("pl"));
+  o.plots_dir = pl;
+  o.overwrite = 1;
+  ck_assert_int_eq(report(&o, &res, &err), SP_OK);
+  ck_assert_int_eq(res.rerun, 0);
+  ck_assert_uint_eq(res.nembedded, res.nfigures);
+  html = slurp(path_in("r.html"));
+  ASSERT_HAS(html, "taken from");
+  free(html);
+  /* A histogram of another run is refused. */
+  ck_assert_int_eq(cli("propagate '%s' --samples 20000 --seed 778 --plots pl --force",
+                       path_in("m.spm")),
+                   0);
+  ck_assert_int_eq(report(&o, &res, &err), SP_EDATA);
+  ASSERT_HAS(err.msg, "not of run record");
+}
+END_TEST
+
+START_TEST(test_from_another_folder_and_an_archive)
+{
+  /* The records name m.spm, fit.json and d.csv relative to dir, where the
+   * analysis ran; from another folder they are found through the folder
+   * the records were made in (provenance.working_directory). */
+  sp_reportgen_options o;
+  options(&o, path_in("elsewhere.html"));
+  sp_error err;
+  sp_error_clear(&err);
+  char cwd[1024];
+  ck_assert_ptr_nonnull(getcwd(cwd, sizeof cwd));
+  ck_assert_int_eq(chdir("/"), 0);
+  sp_reportgen_result res;
+  sp_status st = sp_reportgen_write(path_in("run/run.json"), &o, &res, &err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  ck_assert_int_eq(res.rerun, 1);
+  /* An archive (propagate --archive) holds copies named relative to it. */
+  ck_assert_int_eq(cli("propagate m.spm --samples 20000 --seed 777 --archive arch"), 0);
+  options(&o, path_in("archived.html"));
+  ck_assert_int_eq(chdir("/"), 0);
+  st = sp_reportgen_write(path_in("arch/run.json"), &o, &res, &err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  char *html = slurp(path_in("archived.html"));
+  ASSERT_HAS(html, path_in("arch/fits/"));
+  free(html);
+}
+END_TEST
+
+START_TEST(test_model_without_fits)
+{
+  write_file("s.spm", "input p [N] ~ normal(mean=100, sd=5)\noutput q [N] = 2*p\n");
+  ck_assert_int_eq(cli("propagate s.spm --samples 5000 --seed 3 --out run2"), 0);
+  sp_reportgen_options o;
+  options(&o, NULL);
+  sp_error err;
+  sp_error_clear(&err);
+  char cwd[1024];
+  ck_assert_ptr_nonnull(getcwd(cwd, sizeof cwd));
+  ck_assert_int_eq(chdir(dir), 0);
+  sp_status st = sp_reportgen_write("run2/run.json", &o, NULL, &err);
+  ck_assert_int_eq(chdir(cwd), 0);
+  ck_assert_msg(st == SP_OK, "report: %s", err.msg);
+  char *html = slurp(path_in("run2/report.html"));
+  ASSERT_HAS(html, "every distribution is stated in the model");
+  ASSERT_HAS(html, "The model states no limits.");
+  free(html);
+}
+END_TEST
+
+START_TEST(test_command)
+{
+  /* Exit codes: 6 for a missing record, 3 for a bad one, 2 for usage. */
+  ck_assert_int_eq(cli("report missing.json"), 6);
+  ASSERT_HAS(err_text, "missing.json");
+  write_file("bad.json", "[1, 2");
+  ck_assert_int_eq(cli("report bad.json"), 3);
+  ck_assert_int_eq(cli("report"), 2);
+  ck_assert_int_eq(cli("report run/run.json --bogus"), 2);
+  ck_assert_int_eq(cli("report run/run.json --threads 0"), 2);
+  ck_assert_int_eq(cli("report --help"), 0);
+  ASSERT_HAS(out_text, "Usage: scatterprop report RUN.json");
+  ck_assert_int_eq(cli("report run/run.json --out r.html --threads 2"), 0);
+  ASSERT_HAS(out_text, "report written to r.html");
+  ASSERT_HAS(out_text, "the repeated run matched the record");
+  ck_assert_int_eq(cli("report run/run.json --out r.html"), 6);
+  ASSERT_HAS(err_text, "--force");
+  ck_assert_int_eq(cli("report run/run.json --out r.html --force"), 0);
+  char *html = slurp(path_in("r.html"));
+  ASSERT_HAS(html, "scatterprop report run/run.json --out r.html --force");
+  free(html);
+}
+END_TEST
+
+static Suite *suite(void)
+{
+  Suite *s = suite_create("reportgen");
+  TCase *t = tcase_create("reportgen");
+  tcase_add_checked_fixture(t, setup, teardown);
+  tcase_set_timeout(t, 120);
+  tcase_add_test(t, test_key_figures);
+  tcase_add_test(t, test_hostile_text_is_escaped);
+  tcase_add_test(t, test_tampered_data_is_refused);
+  tcase_add_test(t, test_changed_fit_record_and_model_are_refused);
+  tcase_add_test(t, test_repeated_run_must_match);
+  tcase_add_test(t, test_bad_records);
+  tcase_add_test(t, test_charts_embedded);
+  tcase_add_test(t, test_from_another_folder_and_an_archive);
+  tcase_add_test(t, test_model_without_fits);
+  tcase_add_test(t, test_command);
+  suite_add_tcase(s, t);
+  return s;
+}
+
+int main(void) { return sp_run_suite(suite()); }
