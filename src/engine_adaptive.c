@@ -75,7 +75,7 @@ sp_status engine_adaptive_add(engine_adaptive *a, double *const *vals,
     engine_moments mo;
     engine_moments_block(a->scratch, m, &mo);
     e[4 * o + 0] = m ? mo.mean : NAN;
-    e[4 * o + 1] = m >= 2 ? sqrt(mo.m2 / ((double)m - 1.0)) : NAN;
+    e[4 * o + 1] = engine_moments_sd(&mo);
     size_t lo, hi;
     if (sp_engine_symmetric_index(m, coverage, &lo, &hi)) {
       e[4 * o + 2] = sp_select(a->scratch, m, lo);

@@ -78,8 +78,15 @@ void engine_sample_block(const engine_inputs *x, const engine_design *d,
 
 /* ---- moments (engine_stats.c) -------------------------------------------- */
 
+/* mean, min and max are in the output's unit; the central sums m2, m3, m4
+ * are those of the values times 2^shift (a power of two chosen from the
+ * largest magnitude, so that neither the sums of values near DBL_MAX
+ * overflow nor the powers of tiny values underflow).  Read the standard
+ * deviation with engine_moments_sd; skewness and kurtosis are ratios in
+ * which the scale cancels. */
 typedef struct {
   uint64_t n, nan, posinf, neginf;
+  int64_t shift;
   double mean, m2, m3, m4, min, max;
 } engine_moments;
 
@@ -87,6 +94,9 @@ void engine_moments_block(const double *y, size_t n, engine_moments *m);
 /* a <- a merged with b (a's samples first). */
 void engine_moments_merge(engine_moments *a, const engine_moments *b);
 void engine_moments_zero(engine_moments *m);
+/* The sample standard deviation (n - 1) of m, NAN for fewer than 2 values;
+ * +Inf when it exceeds the range of a double. */
+double engine_moments_sd(const engine_moments *m);
 
 /* Removes non-finite values from y[0..n) keeping the order; returns the
  * number kept. */
@@ -150,6 +160,11 @@ int engine_threads_resolve(int t);
 /* Checks opt against the domains documented in engine.h. */
 sp_status engine_options_check(const sp_engine_options *opt, size_t ninputs,
                                size_t noutputs, int indices, sp_error *err);
+/* The sample-count limits of rank sensitivity and Sobol' indices (2^32 - 1),
+ * checked after the memory guard so that a run too large for memory is
+ * refused with its figure first. */
+sp_status engine_options_check_counts(const sp_engine_options *opt, int indices,
+                                      sp_error *err);
 /* The default percentiles (percent) and their count. */
 extern const double engine_default_percentiles[];
 extern const size_t engine_ndefault_percentiles;

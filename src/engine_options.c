@@ -189,10 +189,16 @@ sp_status engine_options_check(const sp_engine_options *opt, size_t ninputs,
       return sp_fail(err, SP_EUSAGE,
                      "Sobol' indices need independent inputs; %zu rank correlations were given",
                      opt->ncorr);
-    if (opt->samples > UINT32_MAX)
-      return sp_fail(err, SP_EUSAGE, "Sobol' indices: at most %u base samples", UINT32_MAX);
   }
-  if (opt->rank_sensitivity && !adaptive && opt->samples > UINT32_MAX)
+  return SP_OK;
+}
+
+sp_status engine_options_check_counts(const sp_engine_options *opt, int indices, sp_error *err)
+{
+  if (indices && opt->samples > UINT32_MAX)
+    return sp_fail(err, SP_EUSAGE, "Sobol' indices: at most %u base samples", UINT32_MAX);
+  if (!indices && opt->rank_sensitivity && opt->adaptive_digits == 0 &&
+      opt->samples > UINT32_MAX)
     return sp_fail(err, SP_EUSAGE, "rank sensitivity: at most %u samples", UINT32_MAX);
   return SP_OK;
 }

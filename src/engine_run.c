@@ -147,7 +147,7 @@ static void output_moments(sp_engine_output *o, const engine_moments *m)
   o->mean = m->n ? m->mean : NAN;
   o->min = m->n ? m->min : NAN;
   o->max = m->n ? m->max : NAN;
-  o->sd = m->n >= 2 ? sqrt(m->m2 / (n - 1.0)) : NAN;
+  o->sd = engine_moments_sd(m);
   const double m2 = m->m2 / n;
   o->skewness = m->n >= 3 && m2 > 0.0 ? (m->m3 / n) / (m2 * sqrt(m2)) : NAN;
   o->kurtosis = m->n >= 4 && m2 > 0.0 ? (m->m4 / n) / (m2 * m2) - 3.0 : NAN;
@@ -199,6 +199,8 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
   const uint64_t planned = adaptive ? opt->max_samples / batch * batch : opt->samples;
 
   st = engine_memory_guard(engine_run_bytes(opt, k, nout, planned, T), opt->memory_limit, err);
+  if (st != SP_OK) return st;
+  st = engine_options_check_counts(opt, 0, err);
   if (st != SP_OK) return st;
 
   engine_inputs inp;
@@ -316,7 +318,9 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
       if (st != SP_OK) goto done;
       if (h >= 1) {
         for (size_t o = 0; o < nout; o++)
-          u_all[o] = job.tot[o].n >= 2 ? sqrt(job.tot[o].m2 / ((double)job.tot[o].n - 1.0)) : NAN;
+          /* allocated and checked above under the same status (not followed):
+           * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
+          u_all[o] = engine_moments_sd(&job.tot[o]);
         stable = engine_adaptive_stable(&ad, u_all, opt->adaptive_digits, opt->tolerance, outs);
         if (stable) break;
       }

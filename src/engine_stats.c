@@ -45,15 +45,30 @@ void engine_moments_zero(engine_moments *m)
   m->max = -INFINITY;
 }
 
+/* The power-of-two exponent that brings the largest magnitude big into
+ * [0.5, 1), clamped to the normal powers of two (as sp_stats_describe
+ * scales).  Multiplying by 2^shift is exact barring underflow of values
+ * 2^1022 times smaller than the largest, whose contributions lie below the
+ * rounding of the sums anyway; so the sums are those of unscaled
+ * arithmetic wherever that does not overflow or underflow. */
+static int64_t moments_shift(double big)
+{
+  int e;
+  frexp(big, &e);
+  int64_t shift = -(int64_t)e;
+  if (shift > 1022) shift = 1022;
+  if (shift < -1022) shift = -1022;
+  return shift;
+}
+
 void engine_moments_block(const double *y, size_t n, engine_moments *m)
 {
   engine_moments_zero(m);
-  double s = 0.0, lo = INFINITY, hi = -INFINITY;
+  double lo = INFINITY, hi = -INFINITY;
   uint64_t c = 0;
   for (size_t i = 0; i < n; i++) {
     double v = y[i];
     if (isfinite(v)) {
-      s += v;
       c++;
       lo = v < lo ? v : lo;
       hi = v > hi ? v : hi;
@@ -69,28 +84,41 @@ void engine_moments_block(const double *y, size_t n, engine_moments *m)
   if (c == 0) return;
   m->min = lo;
   m->max = hi;
+  const int64_t shift = moments_shift(fmax(fabs(lo), fabs(hi)));
+  const double sc = ldexp(1.0, (int)shift);
+  const double slo = lo * sc, shi = hi * sc;
+  double s = 0.0;
+  for (size_t i = 0; i < n; i++)
+    if (isfinite(y[i])) s += y[i] * sc;
   double mean = s / (double)c;
   /* Second pass: the correction of the mean (Chan, Golub & LeVeque 1983,
    * The American Statistician 37(3), 242-247, eq. 1.7) and the central
-   * sums. */
+   * sums, all on the scaled values. */
   double d1 = 0.0;
   for (size_t i = 0; i < n; i++)
-    if (isfinite(y[i])) d1 += y[i] - mean;
+    if (isfinite(y[i])) d1 += y[i] * sc - mean;
   mean += d1 / (double)c;
-  if (mean < lo) mean = lo;
-  if (mean > hi) mean = hi;
+  if (mean < slo) mean = slo;
+  if (mean > shi) mean = shi;
   double s2 = 0.0, s3 = 0.0, s4 = 0.0;
   for (size_t i = 0; i < n; i++) {
     if (!isfinite(y[i])) continue;
-    double d = y[i] - mean, d2 = d * d;
+    double d = y[i] * sc - mean, d2 = d * d;
     s2 += d2;
     s3 += d2 * d;
     s4 += d2 * d2;
   }
-  m->mean = mean;
+  m->shift = shift;
+  m->mean = ldexp(mean, (int)-shift);
   m->m2 = s2;
   m->m3 = s3;
   m->m4 = s4;
+}
+
+double engine_moments_sd(const engine_moments *m)
+{
+  if (m->n < 2) return NAN;
+  return ldexp(sqrt(m->m2 / ((double)m->n - 1.0)), (int)-m->shift);
 }
 
 void engine_moments_merge(engine_moments *a, const engine_moments *b)
@@ -107,15 +135,23 @@ void engine_moments_merge(engine_moments *a, const engine_moments *b)
     a->neginf = ni;
     return;
   }
+  /* Both to the smaller shift (the larger magnitude): the other's sums
+   * shrink by an exact power of two. */
+  const int64_t shift = a->shift < b->shift ? a->shift : b->shift;
+  const int ea = (int)(shift - a->shift), eb = (int)(shift - b->shift);
+  const double a2 = ldexp(a->m2, 2 * ea), a3 = ldexp(a->m3, 3 * ea), a4 = ldexp(a->m4, 4 * ea);
+  const double b2 = ldexp(b->m2, 2 * eb), b3 = ldexp(b->m3, 3 * eb), b4 = ldexp(b->m4, 4 * eb);
+  const double sa = ldexp(a->mean, (int)shift), sb = ldexp(b->mean, (int)shift);
   const double na = (double)a->n, nb = (double)b->n, n = na + nb;
-  const double d = b->mean - a->mean, dn = d / n, dn2 = dn * dn;
-  const double m2 = a->m2 + b->m2 + d * dn * na * nb;
-  const double m3 = a->m3 + b->m3 + d * dn2 * na * nb * (na - nb)
-                    + 3.0 * dn * (na * b->m2 - nb * a->m2);
-  const double m4 = a->m4 + b->m4 + d * dn2 * dn * na * nb * (na * na - na * nb + nb * nb)
-                    + 6.0 * dn2 * (na * na * b->m2 + nb * nb * a->m2)
-                    + 4.0 * dn * (na * b->m3 - nb * a->m3);
-  a->mean += dn * nb;
+  const double d = sb - sa, dn = d / n, dn2 = dn * dn;
+  const double m2 = a2 + b2 + d * dn * na * nb;
+  const double m3 = a3 + b3 + d * dn2 * na * nb * (na - nb)
+                    + 3.0 * dn * (na * b2 - nb * a2);
+  const double m4 = a4 + b4 + d * dn2 * dn * na * nb * (na * na - na * nb + nb * nb)
+                    + 6.0 * dn2 * (na * na * b2 + nb * nb * a2)
+                    + 4.0 * dn * (na * b3 - nb * a3);
+  a->mean = ldexp(sa + dn * nb, (int)-shift);
+  a->shift = shift;
   a->m2 = m2;
   a->m3 = m3;
   a->m4 = m4;

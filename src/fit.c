@@ -351,6 +351,8 @@ sp_status sp_fit_mle_ws(const sp_family *fam, const double *x, size_t n,
     }
   }
   for (size_t p = 0; p < fam->nparam; p++)
+    /* written before on every path (the loop bounds are not followed):
+     * NOLINTNEXTLINE(clang-analyzer-core.uninitialized.Assign) */
     if (fx[p]) theta[p] = keep[p];
   sp_error e;
   sp_error_clear(&e);
@@ -513,22 +515,33 @@ void sp_fit_rank(sp_fit_result *r)
     c->rejected = c->judged_by >= 0 && c->gof[c->judged_by].p < o->alpha;
     if (!c->rejected) nfree++;
   }
+  /* AICc needs n > k + 1.  When no fitted candidate has it (n = 3 with two
+   * parameters), every AICc would be an equal infinity and the ranking the
+   * order of the list: rank by AIC then, and say so. */
+  sp_fit_select sel = o->select;
+  int aicc_undefined = 0;
+  if (sel == SP_FIT_SELECT_AICC && nok > 0) {
+    aicc_undefined = 1;
+    for (size_t i = 0; i < r->ncand; i++)
+      if (r->cand[i].status == SP_FIT_OK && isfinite(r->cand[i].aicc)) aicc_undefined = 0;
+    if (aicc_undefined) sel = SP_FIT_SELECT_AIC;
+  }
   /* Rank by the criterion; ties keep candidate order. */
   for (size_t i = 0; i < r->ncand; i++) {
     sp_fit_candidate *c = &r->cand[i];
     if (c->status != SP_FIT_OK) continue;
-    double v = sp_fit_criterion(c, o->select);
+    double v = sp_fit_criterion(c, sel);
     size_t rank = 1;
     for (size_t j = 0; j < r->ncand; j++) {
       const sp_fit_candidate *d = &r->cand[j];
       if (j == i || d->status != SP_FIT_OK) continue;
-      double u = sp_fit_criterion(d, o->select);
+      double u = sp_fit_criterion(d, sel);
       if (u < v || (u == v && j < i)) rank++;
     }
     c->rank = rank;
   }
-  const char *crit = criterion_label(o->select);
-  const char *best_word = o->select == SP_FIT_SELECT_LOGLIK ? "highest" : "lowest";
+  const char *crit = criterion_label(sel);
+  const char *best_word = sel == SP_FIT_SELECT_LOGLIK ? "highest" : "lowest";
   double alpha_pct = 100.0 * o->alpha;
   if (nok == 0) {
     snprintf(r->reason, sizeof r->reason, "no candidate family could be fitted");
@@ -545,8 +558,7 @@ void sp_fit_rank(sp_fit_result *r)
         return;
       }
       r->chosen = (long)i;
-      double v = o->select == SP_FIT_SELECT_LOGLIK ? c->loglik
-                                                   : sp_fit_criterion(c, o->select);
+      double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
       snprintf(r->reason, sizeof r->reason,
                "%s: chosen by request (%s %.1f, rank %zu of %zu%s)", c->family->name,
                crit, v, c->rank, nok, c->rejected ? ", rejected by A² at the level set" : "");
@@ -565,7 +577,7 @@ void sp_fit_rank(sp_fit_result *r)
   }
   r->chosen = best;
   const sp_fit_candidate *c = &r->cand[best];
-  double v = o->select == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, o->select);
+  double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
   const char *by = substitute ? "A² (W² where A² is infinite)" : "A²";
   if (nfree > 0)
     snprintf(r->reason, sizeof r->reason,
@@ -577,6 +589,11 @@ void sp_fit_rank(sp_fit_result *r)
              "%s: %s %s (%.1f) of the %zu fitted candidate%s; every one is rejected "
              "by %s at %g%%",
              c->family->name, best_word, crit, v, nok, nok == 1 ? "" : "s", by, alpha_pct);
+  if (aicc_undefined) {
+    size_t len = strlen(r->reason);
+    snprintf(r->reason + len, sizeof r->reason - len,
+             " (AICc is undefined for n = %zu: n <= k + 1 for every candidate)", r->n);
+  }
 }
 
 sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
@@ -784,6 +801,20 @@ done:
   return st;
 }
 
+/* A data error of the fit ("need at least 2 values, got 1") says which
+ * file and column it is about. */
+static sp_status with_column(const sp_table *t, const char *column, sp_status st,
+                             sp_error *err)
+{
+  if (st != SP_EDATA || !err) return st;
+  char msg[SP_ERROR_MSG_MAX], hint[SP_ERROR_MSG_MAX];
+  snprintf(msg, sizeof msg, "%s", err->msg);
+  snprintf(hint, sizeof hint, "%s", err->hint);
+  sp_fail(err, SP_EDATA, "%s: column '%s': %.900s", t->path, column, msg);
+  if (hint[0]) sp_error_hint(err, "%s", hint);
+  return SP_EDATA;
+}
+
 sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
                        const sp_fit_options *opt, sp_fit_grouped *out, sp_error *err)
 {
@@ -807,7 +838,10 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
     if (!g) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
     if (g->kind != SP_COLUMN_TEXT)
       return sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
-    return sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o, out, err);
+    return with_column(t, column,
+                       sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o,
+                                          out, err),
+                       err);
   }
   double *v = malloc((c->n ? c->n : 1) * sizeof *v);
   if (!v) return sp_fit_fail_nomem(err);
@@ -818,5 +852,5 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
   }
   sp_status st = sp_fit_run(v, m, &o, &out->pooled, err);
   free(v);
-  return st;
+  return with_column(t, column, st, err);
 }

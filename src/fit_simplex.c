@@ -346,6 +346,8 @@ sp_status sp_fit_simplex(const sp_family *fam, const double *x, size_t n,
   int nm_conv = 0;
   for (int round = 0; round < 2; round++) {
     for (size_t j = 0; j < c.k; j++) {
+      /* written before on every path (the loop bounds are not followed):
+       * NOLINTNEXTLINE(clang-analyzer-core.CallAndMessage) */
       gsl_vector_set(w->t[c.k], j, t[j]);
       /* Initial steps: a tenth of the data spread for a location, 0.2
        * (about 20%) on the log scale; the restart uses a tenth of that. */

@@ -205,10 +205,7 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
       }
       double sm = gsl_min_fminimizer_x_minimum(m);
       double lm = -gsl_min_fminimizer_f_minimum(m);
-      if (lm >= l_best) {
-        s_best = sm;
-        l_best = lm;
-      }
+      if (lm >= l_best) s_best = sm;
     } else {
       /* A flat top on the grid: the grid point is kept. */
       converged = 0;

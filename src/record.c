@@ -643,10 +643,14 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
                    r->name);
   const char *s = NULL;
   TRY(need_str(r, root, "format", "format", 0, &s));
+  /* set when the reader above returned SP_OK (not followed by the analyzer):
+   * NOLINTNEXTLINE(clang-analyzer-core.NonNullParamChecker) */
   if (strcmp(s, SP_RECORD_FIT_FORMAT) != 0)
     return bad(r, "format", "must be \"%s\", got \"%s\"", SP_RECORD_FIT_FORMAT, s);
   long long v;
   TRY(need_count(r, root, "version", "version", 0, &v));
+  /* set when the reader above returned SP_OK (not followed):
+   * NOLINTNEXTLINE(clang-analyzer-core.UndefinedBinaryOperatorResult) */
   if (v != SP_RECORD_FIT_VERSION)
     return bad(r, "version", "is %lld; this build reads version %d", v,
                SP_RECORD_FIT_VERSION);
@@ -662,6 +666,8 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_str(r, data, "path", "data.path", 0, &path));
   TRY(need_count(r, data, "size", "data.size", 0, &v));
   TRY(need_str(r, data, "sha256", "data.sha256", 0, &sha));
+  /* set when the reader above returned SP_OK (not followed by the analyzer):
+   * NOLINTNEXTLINE(clang-analyzer-core.NonNullParamChecker) */
   if (strlen(sha) != 64 || strspn(sha, "0123456789abcdef") != 64)
     return bad(r, "data.sha256", "must be 64 lower-case hexadecimal digits");
   json_t *meta = NULL;
@@ -708,6 +714,8 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_str(r, opt, "force_family", "options.force_family", 1, &s));
   double alpha;
   TRY(need_num(r, opt, "alpha", "options.alpha", 0, &alpha));
+  /* set when the reader above returned SP_OK (not followed):
+   * NOLINTNEXTLINE(clang-analyzer-core.UndefinedBinaryOperatorResult) */
   if (!(alpha > 0 && alpha < 1)) return bad(r, "options.alpha", "must be in (0, 1)");
   TRY(need_str(r, opt, "pvalue_method", "options.pvalue_method", 0, &s));
   if (!one_of(s, pvm, 4))

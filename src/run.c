@@ -63,6 +63,8 @@ void sp_run_free(sp_run *r)
 {
   if (!r) return;
   for (size_t k = 0; k < r->nfits; k++) {
+    /* allocated and checked above under the same status (not followed):
+     * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
     free(r->fits[k].path);
     sp_record_fit_clear(&r->fits[k].fit);
   }
@@ -90,8 +92,12 @@ static sp_status resolve_fit(sp_run *r, size_t i, sp_error *err)
   sp_error_clear(&e);
   if (sp_sha256_file(src->path, src->sha256, &src->size, &e) != SP_OK ||
       sp_record_fit_read(src->path, &src->fit, &e) != SP_OK) {
+    /* The record's own position (a JSON syntax error's line and column)
+     * stays in the message. */
+    char inner[SP_ERROR_MSG_MAX + SP_ERROR_FILE_MAX + 64];
+    sp_error_format(&e, inner, sizeof inner);
     *err = e;
-    sp_fail_at(err, e.code, r->path, in->line, 0, "input %s: %s", in->name, e.msg);
+    sp_fail_at(err, e.code, r->path, in->line, 0, "input %s: %.900s", in->name, inner);
     return sp_error_hint(err, "fit(\"...\") paths are relative to the model file's folder; "
                               "write the record with 'scatterprop fit ... --out FILE'");
   }
@@ -213,6 +219,12 @@ sp_status sp_run_memory_needed(const sp_run *r, const sp_run_options *opt, uint6
 sp_status sp_run_execute(sp_run *r, const sp_run_options *opt, sp_error *err)
 {
   const sp_model *m = r->model;
+  /* A model without inputs compiles (its outputs are constants), but has
+   * nothing to propagate: a model error, not the engine's usage error. */
+  if (sp_model_input_count(m) == 0)
+    return sp_fail_at(err, SP_EMODEL, r->path, sp_model_output_at(m, 0)->line, 0,
+                      "the model has no inputs: nothing is uncertain, so there is nothing "
+                      "to propagate");
   size_t nc = sp_model_correlation_count(m), nl = sp_model_limit_count(m);
   sp_engine_corr *corr = calloc(nc ? nc : 1, sizeof *corr);
   sp_engine_limit *lim = calloc(nl ? nl : 1, sizeof *lim);
@@ -267,8 +279,11 @@ int sp_run_decimals(const sp_run *r, size_t j)
   double sem = r->result.out[j].sem;
   if (!(sem > 0) || !isfinite(sem)) return -1;
   int d = 1 - (int)floor(log10(sem));
+  /* Fixed decimals only where they show the value: past 15 decimals the
+   * values would print as zeros, and from 1e15 up a double has no more
+   * integer digits to show; -1 asks for 6 significant digits there. */
+  if (d > 15 || sem >= 1e15) return -1;
   if (d < 0) d = 0;
-  if (d > 15) d = 15;
   return d;
 }
 

@@ -239,6 +239,8 @@ double sp_quantile_sorted(const double *sorted, size_t n, double p)
 /* Minimum of a[lo..n). */
 static double min_from(const double *a, size_t lo, size_t n)
 {
+  /* written before on every path (the loop bounds are not followed):
+   * NOLINTNEXTLINE(clang-analyzer-core.uninitialized.Assign) */
   double m = a[lo];
   for (size_t i = lo + 1; i < n; i++)
     if (a[i] < m) m = a[i];

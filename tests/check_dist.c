@@ -1946,6 +1946,117 @@ START_TEST(test_fit_errors)
 }
 END_TEST
 
+/* ---- extreme parameters (regressions) ------------------------------------ */
+
+START_TEST(test_gamma_large_shape)
+{
+  /* GSL 2.7's gsl_sf_gamma_inc_Q gave Q(1e8, 1e8 + 1e4) = 0.092 (its
+   * large-x series without convergence), so quantile_P(0.9) of
+   * gamma(1e8, 1) came back at the mean plus one sd.  References: mpmath
+   * 1.2.1 at 60 (150 for the 1e-89 tails) digits, P(a, x) =
+   * exp(a log x - x - loggamma(a + 1)) hyp1f1(1, a + 1, x), Q = 1 - P.
+   * Tolerance 1e-12: the measured error of the uniform expansion is below
+   * 1e-13 there (see gamma.c). */
+  const sp_family *f = fam("gamma");
+  const double t[2] = {1e8, 1.0};
+  ASSERT_REL(f->cdf_Q(t, 1e8 + 1e4), 0.15865525352820118643, 1e-12);
+  ASSERT_REL(f->cdf_P(t, 1e8 - 1e4), 0.15865525352814383041, 1e-12);
+  ASSERT_REL(f->cdf_Q(t, 1e8 + 2e5), 3.5936926217787997916e-89, 1e-12);
+  ASSERT_REL(f->cdf_P(t, 1e8 - 2e5), 2.1082443672341443934e-89, 1e-12);
+  /* GSL's P series stopped short here (5.8e-8 off) */
+  const double t2[2] = {5e4, 1.0};
+  ASSERT_REL(f->cdf_P(t2, 49776.39320225002), 0.15865444478879534787, 1e-12);
+  /* Quantiles come back to their probabilities at shapes up to the cap,
+   * within the solver's tolerance on log x (2 DBL_EPSILON |log x|, a
+   * relative error in x that moves P by the density times x times it;
+   * doubled), plus 1e-12 relatively for the tails themselves. */
+  const double shapes[] = {1e5, 1e8, 1e12, 1e16, 1e20};
+  const double ps[] = {1e-10, 0.1, 0.5, 0.9, 1.0 - 1e-10};
+  for (size_t i = 0; i < sizeof shapes / sizeof shapes[0]; i++) {
+    const double ta[2] = {shapes[i], 2.0};
+    for (size_t k = 0; k < sizeof ps / sizeof ps[0]; k++) {
+      double p = ps[k], q = 1.0 - p;
+      double x = f->quantile_P(ta, p), y = f->quantile_Q(ta, q);
+      double tx = 4 * EPS * fabs(log(x)) * x * exp(f->logpdf(ta, x)) + 1e-12 * fmin(p, q);
+      double ty = 4 * EPS * fabs(log(y)) * y * exp(f->logpdf(ta, y)) + 1e-12 * fmin(p, q);
+      ck_assert_msg(fabs(f->cdf_P(ta, x) - p) <= tx, "shape %g: P(qP(%g)) = %.17g (tol %g)",
+                    shapes[i], p, f->cdf_P(ta, x), tx);
+      ck_assert_msg(fabs(f->cdf_Q(ta, y) - q) <= ty, "shape %g: Q(qQ(%g)) = %.17g (tol %g)",
+                    shapes[i], q, f->cdf_Q(ta, y), ty);
+    }
+  }
+  /* Past the cap: an error naming the parameter. */
+  sp_error err;
+  sp_error_clear(&err);
+  const double big[2] = {1e21, 1.0};
+  ck_assert_int_eq(f->check(big, &err), SP_EUSAGE);
+  ck_assert_msg(strstr(err.msg, "gamma: shape must be at most 1e+20") != NULL, "%s", err.msg);
+}
+END_TEST
+
+START_TEST(test_truncnormal_tiny_sd)
+{
+  /* sd = 1e-300 puts the limits -1 and 1 at -1e300 and 1e300 sd, where
+   * GSL's gsl_sf_log_erfc returned NaN, so every quantile (and sample) was
+   * NaN.  The truncation is then immaterial: quantiles are sd * z_p, with
+   * z_0.1 = -1.281551565544600467 and, for the half-normal on [0, 1],
+   * z_0.55 = 0.12566134685507403421 (mpmath 1.2.1: sqrt(2) erfinv(2p - 1)).
+   * Tolerance: 64 EPS for the inverse normal and the scaling. */
+  const sp_family *f = fam("truncnormal");
+  const double t1[4] = {0.0, 1e-300, -1.0, 1.0}, t2[4] = {0.0, 1e-300, 0.0, 1.0};
+  ASSERT_REL(f->quantile_P(t1, 0.1), -1.281551565544600467e-300, 64 * EPS);
+  ASSERT_REL(f->quantile_Q(t1, 0.1), 1.281551565544600467e-300, 64 * EPS);
+  ASSERT_REL(f->quantile_P(t2, 0.1), 0.12566134685507403421e-300, 64 * EPS);
+  double out[64];
+  sp_pcg64 g;
+  sp_pcg64_seed(&g, 0, 1, 0, 2);
+  f->sample(t1, &g, out, 64);
+  for (size_t i = 0; i < 64; i++)
+    ck_assert_msg(isfinite(out[i]) && fabs(out[i]) < 1e-298, "sample %zu = %g", i, out[i]);
+}
+END_TEST
+
+START_TEST(test_triangular_extreme_widths)
+{
+  /* Widths past 1e154 overflowed the product of two widths (NaN
+   * quantiles), widths below 1e-154 underflowed it (NaN log density).
+   * Closed forms: for x <= mode, x = min + sqrt(p (max - min)(mode - min))
+   * (mpmath 1.2.1 at 60 digits: -2.9289321881345249098e299 for
+   * triangular(-1e300, 0, 1) at p = 1/2), P(-5e299) = (5e299)^2 / (1e300
+   * (1e300 + 1)) = 0.25, and the density 2 (x - min) / ((max - min)(mode -
+   * min)) = 1e300 at x = 0.5e-300 of triangular(0, 1e-300, 1e-300), log
+   * 690.77552789821370518.  Tolerance 16 EPS (a few roundings). */
+  const sp_family *f = fam("triangular");
+  const double wide[3] = {-1e300, 0.0, 1.0}, narrow[3] = {0.0, 1e-300, 1e-300};
+  ASSERT_REL(f->quantile_P(wide, 0.5), -2.9289321881345249098e299, 16 * EPS);
+  ASSERT_REL(f->quantile_Q(wide, 0.5), -2.9289321881345249098e299, 16 * EPS);
+  ASSERT_REL(f->cdf_P(wide, -5e299), 0.25, 16 * EPS);
+  ASSERT_REL(f->cdf_Q(wide, -5e299), 0.75, 16 * EPS);
+  ASSERT_REL(f->logpdf(narrow, 0.5e-300), 690.77552789821370518, 16 * EPS);
+  ck_assert(f->logpdf(narrow, 0.0) == -INFINITY);
+  ASSERT_REL(f->quantile_P(narrow, 0.25), 0.5e-300, 16 * EPS);
+}
+END_TEST
+
+START_TEST(test_beta_large_shapes_refused)
+{
+  /* GSL's incomplete beta runs out of iterations once both shapes are
+   * large: beta(1e6, 1e6) had NaN tails and a median 0.12 sd off.  Both
+   * past 1e5 is an error naming the smaller; one large shape still works
+   * (its median against the closed form of beta(a, 1): 2^(-1/a)). */
+  const sp_family *f = fam("beta");
+  sp_error err;
+  sp_error_clear(&err);
+  const double both[4] = {1e6, 2e6, 0.0, 1.0};
+  ck_assert_int_eq(f->check(both, &err), SP_EUSAGE);
+  ck_assert_str_eq(err.msg, "beta: alpha must be at most 100000 when beta is larger too, "
+                            "got alpha 1e+06, beta 2e+06");
+  const double one[4] = {1e6, 1.0, 0.0, 1.0};
+  ck_assert_int_eq(f->check(one, &err), SP_OK);
+  ASSERT_REL(f->quantile_P(one, 0.5), pow(2.0, -1e-6), 1e-12);
+}
+END_TEST
+
 static Suite *dist_suite(void)
 {
   Suite *s = suite_create("dist");
@@ -1970,6 +2081,10 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_weibull_mle_large_and_wide);
   tcase_add_test(tc, test_fit_start);
   tcase_add_test(tc, test_fit_errors);
+  tcase_add_test(tc, test_gamma_large_shape);
+  tcase_add_test(tc, test_truncnormal_tiny_sd);
+  tcase_add_test(tc, test_triangular_extreme_widths);
+  tcase_add_test(tc, test_beta_large_shapes_refused);
   suite_add_tcase(s, tc);
   /* 23 sets of 10^5 draws with their CDFs: about 0.5 s in a release build,
    * 1 s of CPU under the sanitizers (Debug). */

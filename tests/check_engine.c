@@ -416,6 +416,77 @@ START_TEST(test_memory_guard)
 }
 END_TEST
 
+START_TEST(test_moments_extreme_scale)
+{
+  /* Moments of outputs near the ends of the double range.  The central
+   * sums used to be formed unscaled: for normal(1e300, 1e300) the squares
+   * overflowed (sd printed '-'), for normal(0, 1e-300) they underflowed
+   * (sd 0), and the plain sum of uniform(1.5e308, 1.7e308) overflowed (an
+   * infinite mean).  Closed forms with the usual 5 sigma bounds: se(mean)
+   * = sd / sqrt(N), se(sd) <= sd sqrt((kurt + 2) / (4N)) with excess
+   * kurtosis 0 (normal) and -1.2 (uniform); the skewness of a normal sample
+   * has se sqrt(6/N). */
+  double c[] = {1};
+  model_ctx mc = {m_identity, c};
+  sp_evaluator ev = evaluator(&mc, 1, 1);
+  const size_t N = 100000;
+  const struct {
+    const sp_family *f;
+    double a, b, mean, sd, kurt;
+  } cases[] = {
+    {&fam_normal, 1e300, 1e300, 1e300, 1e300, 0.0},
+    {&fam_normal, 0.0, 1e-300, 0.0, 1e-300, 0.0},
+    {&fam_normal, 0.0, 1e-305, 0.0, 1e-305, 0.0},
+    {&fam_uniform, 1.5e308, 1.7e308, 1.6e308, 0.2e308 / 3.4641016151377546, -1.2},
+  };
+  for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+    sp_engine_input in[1] = {input(cases[k].f, cases[k].a, cases[k].b, "x")};
+    sp_engine_options o = opts(N, 7);
+    sp_engine_result r;
+    run_ok(in, 1, &ev, &o, &r);
+    const sp_engine_output *y = &r.out[0];
+    ck_assert_uint_eq(y->n, N);
+    ASSERT_ABS(y->mean, cases[k].mean, 5 * cases[k].sd / sqrt((double)N));
+    ASSERT_ABS(y->sd, cases[k].sd, 5 * cases[k].sd * sqrt((cases[k].kurt + 2.0) / (4.0 * N)));
+    ASSERT_ABS(y->sem, y->sd / sqrt((double)N), 1e-12 * y->sd);
+    ck_assert_msg(isfinite(y->skewness) && fabs(y->skewness) < 5 * sqrt(6.0 / N), "skewness %g",
+                  y->skewness);
+    ASSERT_ABS(y->kurtosis, cases[k].kurt, 0.1);
+    sp_engine_result_free(&r);
+  }
+}
+END_TEST
+
+START_TEST(test_memory_before_count_limits)
+{
+  /* 1e11 samples with rank sensitivity (or 1e11 Sobol' base samples) pass
+   * the 2^32 - 1 limit of those analyses and need some 7 TB: the refusal
+   * must be the memory figure (SP_ENOMEM, exit 5), not the count limit (a
+   * usage error that hides what the run would cost). */
+  double c[] = {1, 1};
+  model_ctx mc = {m_linear, c};
+  sp_evaluator ev = evaluator(&mc, 1, 1);
+  sp_engine_input in[1] = {input(&fam_normal, 0, 1, "a")};
+  sp_engine_options o = opts(100000000000u, 1);
+  o.rank_sensitivity = 1;
+  o.memory_limit = 1000000000u;
+  sp_error err;
+  ck_assert_int_eq(run_err(in, 1, &ev, &o, &err), SP_ENOMEM);
+  ck_assert_msg(strstr(err.msg, "this run needs ") && strstr(err.msg, "the limit is 1.0 GB"),
+                "%s", err.msg);
+  sp_engine_sobol_result sr;
+  sp_error_clear(&err);
+  ck_assert_int_eq(sp_engine_sobol_indices(in, 1, &ev, &o, &sr, &err), SP_ENOMEM);
+  ck_assert_msg(strstr(err.msg, "this run needs "), "%s", err.msg);
+  sp_engine_sobol_result_free(&sr);
+  /* Within memory, the count limits still apply. */
+  o.memory_limit = UINT64_MAX;
+  o.samples = (uint64_t)UINT32_MAX + 1;
+  ck_assert_int_eq(run_err(in, 1, &ev, &o, &err), SP_EUSAGE);
+  ck_assert_str_eq(err.msg, "rank sensitivity: at most 4294967295 samples");
+}
+END_TEST
+
 /* ---- tests: small building blocks -------------------------------------------- */
 
 START_TEST(test_building_blocks)
@@ -1352,6 +1423,8 @@ static Suite *engine_suite(void)
   tcase_add_test(tc, test_sobol_ishigami);
   tcase_add_test(tc, test_sobol_linear);
   tcase_add_test(tc, test_registered_families);
+  tcase_add_test(tc, test_moments_extreme_scale);
+  tcase_add_test(tc, test_memory_before_count_limits);
   suite_add_tcase(s, tc);
   return s;
 }

@@ -469,6 +469,38 @@ START_TEST(test_rank_choice)
 }
 END_TEST
 
+/* n = 3 with two parameters: AICc = AIC + 2k(k+1)/(n-k-1) is undefined
+ * (fit.c sets NaN), so every candidate used to tie at an infinite AICc and
+ * the first in the list was chosen, "lowest AICc (inf)".  Now AIC ranks
+ * them and the reason says why.  Numbers: AIC = 2k - 2 logL: 4 + 10 = 14
+ * for logL -5, 4 + 8 = 12 for logL -4. */
+START_TEST(test_rank_aicc_undefined)
+{
+  sp_fit_candidate c[2];
+  synth(&c[0], &tnorm, -5.0, 2, 3, 0.50);
+  synth(&c[1], &tnorm_cf, -4.0, 2, 3, 0.50);
+  c[0].aicc = c[1].aicc = NAN;
+  sp_fit_result r;
+  memset(&r, 0, sizeof r);
+  sp_fit_options_init(&r.opt);
+  r.cand = c;
+  r.ncand = 2;
+  r.n = 3;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 1);
+  ck_assert_int_eq(c[1].rank, 1);
+  ck_assert_int_eq(c[0].rank, 2);
+  ck_assert_str_eq(r.reason, "tnorm_cf: lowest AIC (12.0) of the 2 candidates not rejected by "
+                             "A² at 5% (AICc is undefined for n = 3: n <= k + 1 for every "
+                             "candidate)");
+  /* One candidate with a finite AICc: AICc ranks, the undefined one last. */
+  c[0].aicc = 30.0;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 0);
+  ck_assert(strstr(r.reason, "lowest AICc (30.0)") != NULL);
+}
+END_TEST
+
 START_TEST(test_option_parsing)
 {
   sp_fit_options o;
@@ -958,6 +990,7 @@ static Suite *fit_suite(void)
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
+  tcase_add_test(tc, test_rank_aicc_undefined);
   tcase_add_test(tc, test_option_parsing);
   suite_add_tcase(s, tc);
   return s;

@@ -73,7 +73,9 @@ const sp_engine_result *sp_run_result(const sp_run *r);
 const sp_engine_sobol_result *sp_run_sobol(const sp_run *r);
 
 /* Decimals that show values of output j to the Monte Carlo resolution: two
- * significant digits of the standard error of the mean. */
+ * significant digits of the standard error of the mean, at least 0; -1
+ * (print with %.6g) when the standard error is 0, unknown, below 1e-14
+ * (more than 15 decimals) or at least 1e15. */
 int sp_run_decimals(const sp_run *r, size_t j);
 
 /* The run record as JSON text (returns owned, free()).  argv (argc words)

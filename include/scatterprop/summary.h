@@ -63,8 +63,9 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
 void sp_summary_set_free(sp_summary_set *s);
 
 /* Decimals that show a value of this spread to about a hundredth of a
- * standard deviation: 2 - floor(log10(sd)), clamped to [0, 12]; -1 when sd
- * is 0 or unknown (then print with %.6g). */
+ * standard deviation: 2 - floor(log10(sd)), at least 0; -1 when sd is 0,
+ * unknown, below 1e-10 (more than 12 decimals) or at least 1e15 (then
+ * print with %.6g). */
 int sp_summary_decimals_for(double sd);
 
 /* Returns owned (free with free()): the set as a JSON document (format

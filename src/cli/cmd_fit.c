@@ -359,7 +359,10 @@ int cli_fit_run(int argc, char **argv)
       goto done;
     }
   }
-  if (outpath && sp_record_write_text(outpath, text, force, &err) != SP_OK) {
+  /* A record without a chosen family is of no use to a model (the reader
+   * refuses it): nothing is written, and the exit code says why. */
+  if (outpath && g.pooled.chosen >= 0 &&
+      sp_record_write_text(outpath, text, force, &err) != SP_OK) {
     if (err.code == SP_EIO && !force) sp_error_hint(&err, "use --force to replace it");
     rc = cli_report(&err);
     goto done;
@@ -399,7 +402,7 @@ int cli_fit_run(int argc, char **argv)
       print_fit(stdout, &g.groups[i].fit, title);
     }
     print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
-    if (outpath) printf("\nfit record written to %s\n", outpath);
+    if (outpath && g.pooled.chosen >= 0) printf("\nfit record written to %s\n", outpath);
     if (plotdir) {
       printf("\n");
       cli_plot_print(stdout, &charts, plotdir);
@@ -408,7 +411,13 @@ int cli_fit_run(int argc, char **argv)
     printf("\n");
     cli_print_caution(stdout);
   }
-  if (g.pooled.chosen < 0) rc = CLI_NUMERIC;
+  if (g.pooled.chosen < 0) {
+    fprintf(stderr, "scatterprop: error: %s: column %s: no family chosen: %s\n",
+            t->path, col->name, g.pooled.reason);
+    fprintf(stderr, "  hint: the table gives each family's reason%s%s\n",
+            outpath ? "; nothing was written to " : "", outpath ? outpath : "");
+    rc = CLI_NUMERIC;
+  }
 done:
   sp_fitplot_charts_free(&charts);
   sp_fitplot_plan_clear(&plan);

@@ -121,6 +121,7 @@ static int parse_percentiles(const char *list, double **out, size_t *n, int *rc)
   }
   free(buf);
   if (*rc != CLI_OK) { free(v); return 0; }
+  free(*out); /* a repeated --percentiles replaces the earlier list */
   *out = v;
   *n = k;
   return 1;
@@ -144,7 +145,12 @@ static void print_output(FILE *out, const sp_run *run, size_t j)
   put(out, dec, o->min);
   fprintf(out, ", ");
   put(out, dec, o->max);
-  fprintf(out, "\n  skewness   %.3f   excess kurtosis %.3f\n", o->skewness, o->kurtosis);
+  fprintf(out, "\n  skewness   ");
+  if (isfinite(o->skewness)) fprintf(out, "%.3f", o->skewness);
+  else fprintf(out, "-");
+  fprintf(out, "   excess kurtosis ");
+  if (isfinite(o->kurtosis)) fprintf(out, "%.3f\n", o->kurtosis);
+  else fprintf(out, "-\n");
   char lead[64];
   int nl = snprintf(lead, sizeof lead, "  %g%% coverage interval  ", 100.0 * res->coverage);
   fprintf(out, "%s[", lead);
@@ -165,8 +171,10 @@ static void print_output(FILE *out, const sp_run *run, size_t j)
   for (size_t k = 0; k < res->npct; k++) {
     fprintf(out, "%s%6.3g%%  ", k % 4 == 0 ? "   " : "  ", 100.0 * res->pct_p[k]);
     char buf[64];
-    if (dec >= 0) snprintf(buf, sizeof buf, "%.*f", dec, res->pct[j * res->npct + k]);
-    else snprintf(buf, sizeof buf, "%.6g", res->pct[j * res->npct + k]);
+    double v = res->pct[j * res->npct + k];
+    if (!isfinite(v)) snprintf(buf, sizeof buf, "-");
+    else if (dec >= 0) snprintf(buf, sizeof buf, "%.*f", dec, v);
+    else snprintf(buf, sizeof buf, "%.6g", v);
     fprintf(out, "%s", buf);
     if (k % 4 == 3 || k + 1 == res->npct) fputc('\n', out);
     else fprintf(out, "%*s", (int)(12 > strlen(buf) ? 12 - strlen(buf) : 1), "");
@@ -187,8 +195,12 @@ static void print_output(FILE *out, const sp_run *run, size_t j)
       fprintf(out, "  what drives it (share of squared rank correlations; Spearman rho):\n");
       for (size_t a = 0; a < ni; a++) {
         size_t i = order[a];
-        fprintf(out, "    %-12s %5.1f%%   rho %+.3f\n", sp_model_input_at(sp_run_model(run), i)->name,
-                100.0 * res->rank_share[j * ni + i], res->rank_corr[j * ni + i]);
+        double sh = res->rank_share[j * ni + i], rho = res->rank_corr[j * ni + i];
+        if (isfinite(sh) && isfinite(rho))
+          fprintf(out, "    %-12s %5.1f%%   rho %+.3f\n",
+                  sp_model_input_at(sp_run_model(run), i)->name, 100.0 * sh, rho);
+        else
+          fprintf(out, "    %-12s     -   rho -\n", sp_model_input_at(sp_run_model(run), i)->name);
       }
       free(order);
     }
@@ -214,6 +226,12 @@ static void print_limits(FILE *out, const sp_run *run)
   for (size_t k = 0; k < res->nlimits; k++) {
     const sp_engine_exceed *e = &res->exceed[k];
     const sp_model_output *mo = sp_model_output_at(sp_run_model(run), (size_t)e->output);
+    if (e->n == 0) {
+      fprintf(out, "  %s %s %g [%s]: no sample has a finite value of %s, so its probability "
+                   "is unknown\n", mo->name, e->direction == SP_ENGINE_BELOW ? "<" : ">",
+              e->value, mo->unit_text, mo->name);
+      continue;
+    }
     fprintf(out, "  %s %s %g [%s]: violated by %llu of %llu samples, P = %.3g", mo->name,
             e->direction == SP_ENGINE_BELOW ? "<" : ">", e->value, mo->unit_text,
             (unsigned long long)e->violations, (unsigned long long)e->n, e->p);
@@ -222,6 +240,9 @@ static void print_limits(FILE *out, const sp_run *run)
     else
       fprintf(out, " (95%% interval %.3g to %.3g, %s)\n", e->lo, e->hi,
               e->one_sided ? "one-sided Clopper-Pearson" : "Wilson score");
+    if (e->n < res->samples)
+      fprintf(out, "    %llu samples whose %s is not finite are left out of this count\n",
+              (unsigned long long)(res->samples - e->n), mo->name);
   }
 }
 
@@ -424,13 +445,6 @@ int cli_propagate_run(int argc, char **argv)
     free(pcts);
     return rc;
   }
-  if ((outdir && !mkdir_p(outdir, &err)) || (plotdir && !mkdir_p(plotdir, &err))) {
-    rc = cli_report(&err);
-    sp_run_free(run);
-    free(pcts);
-    return rc;
-  }
-
   progress_state ps = {isatty(2), time(NULL), 0};
   ro.engine.progress = on_progress;
   ro.engine.progress_user = &ps;
@@ -457,6 +471,9 @@ int cli_propagate_run(int argc, char **argv)
 
   char *record = sp_run_record_json(run, &ro, argc, argv, (int64_t)time(NULL), &err);
   if (!record) rc = cli_report(&err);
+  /* The folder is made only now, so that a run refused or failed leaves
+   * nothing behind. */
+  if (rc == CLI_OK && outdir && !mkdir_p(outdir, &err)) rc = cli_report(&err);
   if (rc == CLI_OK && outdir) {
     char path[4096];
     snprintf(path, sizeof path, "%s/run.json", outdir);
@@ -466,6 +483,7 @@ int cli_propagate_run(int argc, char **argv)
   }
   sp_runplot_set plots;
   memset(&plots, 0, sizeof plots);
+  if (rc == CLI_OK && plotdir && !mkdir_p(plotdir, &err)) rc = cli_report(&err);
   if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
   if (rc == CLI_OK && archive && archive_run(archive, record, &plots, force, &err) != SP_OK)
     rc = cli_report(&err);

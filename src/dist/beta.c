@@ -37,6 +37,15 @@ enum { ALPHA, BETA, MIN, MAX };
 #define BETA_QTOL (2.0 * DBL_EPSILON)
 #define BETA_QMAXIT 200
 
+/* The larger the smaller shape, the more terms GSL's continued fraction
+ * for the incomplete beta needs near the mean; once both shapes pass some
+ * 5e5 it runs out of iterations and gsl_cdf_beta_P returns NaN (measured
+ * with GSL 2.7: beta(1e6, 1e6) has NaN tails within 3 sd of the mean and a
+ * median 0.12 sd off; beta(8.65e5, 8.65e5) and beta(1e10, 1e5) are clean).
+ * So the smaller shape is capped, with a margin; a beta that narrow (sd
+ * below 1/630 of the range) is a normal to within its skewness. */
+#define BETA_MAX_MIN_SHAPE 1e5
+
 static sp_status check(const double *t, sp_error *err)
 {
   sp_status s = sp_dist_check_positive("beta", "alpha", t[ALPHA], err);
@@ -51,6 +60,11 @@ static sp_status check(const double *t, sp_error *err)
     return sp_fail(err, SP_EUSAGE,
                    "beta: max - min must be finite, got min %g, max %g", t[MIN],
                    t[MAX]);
+  if (t[ALPHA] > BETA_MAX_MIN_SHAPE && t[BETA] > BETA_MAX_MIN_SHAPE)
+    return sp_fail(err, SP_EUSAGE,
+                   "beta: %s must be at most %g when %s is larger too, got alpha %g, "
+                   "beta %g", t[ALPHA] <= t[BETA] ? "alpha" : "beta", BETA_MAX_MIN_SHAPE,
+                   t[ALPHA] <= t[BETA] ? "beta" : "alpha", t[ALPHA], t[BETA]);
   return SP_OK;
 }
 

@@ -38,7 +38,7 @@ static void support(const double *t, double *lo, double *hi)
   *hi = t[MAX];
 }
 
-static double logpdf(const double *t, double x)
+static double logpdf_raw(const double *t, double x)
 {
   if (isnan(x)) return NAN;
   double a = t[MIN], c = t[MODE], b = t[MAX];
@@ -59,7 +59,7 @@ static double far_side(double a, double c, double b, double x)
   return ((b - c) * (c - a) + (x - c) * (2.0 * b - c - x)) / ((b - a) * (b - c));
 }
 
-static double cdf_P(const double *t, double x)
+static double cdf_P_raw(const double *t, double x)
 {
   if (isnan(x)) return NAN;
   double a = t[MIN], c = t[MODE], b = t[MAX];
@@ -69,7 +69,7 @@ static double cdf_P(const double *t, double x)
   return far_side(a, c, b, x);
 }
 
-static double cdf_Q(const double *t, double x)
+static double cdf_Q_raw(const double *t, double x)
 {
   if (isnan(x)) return NAN;
   double a = t[MIN], c = t[MODE], b = t[MAX];
@@ -97,7 +97,7 @@ static double beyond(double a, double c, double b, double p)
   return c + (b - c) * ((b - a) * (p - fc)) / ((b - c) + s);
 }
 
-static double quantile_P(const double *t, double p)
+static double quantile_P_raw(const double *t, double p)
 {
   if (!(p >= 0.0 && p <= 1.0)) return NAN;
   double a = t[MIN], c = t[MODE], b = t[MAX];
@@ -106,12 +106,69 @@ static double quantile_P(const double *t, double p)
 }
 
 /* The mirror image: Q-mass q from max is the P-mass q of -X. */
-static double quantile_Q(const double *t, double q)
+static double quantile_Q_raw(const double *t, double q)
 {
   if (!(q >= 0.0 && q <= 1.0)) return NAN;
   double a = t[MIN], c = t[MODE], b = t[MAX];
   if (q <= (b - c) / (b - a)) return -rising(-b, -c, -a, q);
   return -beyond(-b, -c, -a, q);
+}
+
+/* The closed forms multiply two widths, which overflows for widths above
+ * 1e154 and underflows below 1e-154 (triangular(-1e300, 0, 1) gave NaN
+ * quantiles, triangular(0, 1e-300, 1e-300) a NaN log density).  Such
+ * parameters are first scaled by a power of two that brings the width near
+ * 1: exact, so the results are those of the forms above in exact range.
+ * Widths within 2^(+-TRI_SCALE_EXP) are left alone, which keeps every
+ * ordinary result bit for bit. */
+#define TRI_SCALE_EXP 500
+
+/* 2^k with the width of t times 2^k near 1, or 0 when no scaling is
+ * needed; ts receives the scaled parameters. */
+static int tri_scale(const double *t, double ts[3])
+{
+  int e;
+  frexp(t[MAX] - t[MIN], &e);
+  if (e >= -TRI_SCALE_EXP && e <= TRI_SCALE_EXP) return 0;
+  for (int i = 0; i < 3; i++) ts[i] = ldexp(t[i], -e);
+  return -e;
+}
+
+static double logpdf(const double *t, double x)
+{
+  double ts[3];
+  int k = tri_scale(t, ts);
+  if (k == 0) return logpdf_raw(t, x);
+  /* f(x) = 2^k f_s(2^k x) */
+  return logpdf_raw(ts, ldexp(x, k)) + k * SP_DIST_LN2;
+}
+
+static double cdf_P(const double *t, double x)
+{
+  double ts[3];
+  int k = tri_scale(t, ts);
+  return k == 0 ? cdf_P_raw(t, x) : cdf_P_raw(ts, ldexp(x, k));
+}
+
+static double cdf_Q(const double *t, double x)
+{
+  double ts[3];
+  int k = tri_scale(t, ts);
+  return k == 0 ? cdf_Q_raw(t, x) : cdf_Q_raw(ts, ldexp(x, k));
+}
+
+static double quantile_P(const double *t, double p)
+{
+  double ts[3];
+  int k = tri_scale(t, ts);
+  return k == 0 ? quantile_P_raw(t, p) : ldexp(quantile_P_raw(ts, p), -k);
+}
+
+static double quantile_Q(const double *t, double q)
+{
+  double ts[3];
+  int k = tri_scale(t, ts);
+  return k == 0 ? quantile_Q_raw(t, q) : ldexp(quantile_Q_raw(ts, q), -k);
 }
 
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)

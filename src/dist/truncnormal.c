@@ -37,12 +37,24 @@ enum { MEAN, SD, LOWER, UPPER };
 /* Below this log tail, exp() would leave the normal range of doubles. */
 #define TN_LOG_DIRECT (-700.0)
 
+/* Above this z, log Q(z) comes from the leading term of the asymptotic
+ * series Q(z) = phi(z)/z (1 - 1/z^2 + 3/z^4 - ...) (Abramowitz, M. &
+ * Stegun, I.A. (eds.) (1964). Handbook of Mathematical Functions. National
+ * Bureau of Standards, Applied Mathematics Series 55, 26.2.12): the first
+ * correction, log(1 - 1/z^2) ~ -1e-16, is far below the rounding of
+ * log Q ~ -5e15 there.  GSL's gsl_sf_log_erfc returns NaN once z^2
+ * overflows (z near 1e154), which a standardised limit reaches when sd is
+ * tiny (sd = 1e-300). */
+#define TN_ASYMPTOTIC_Z 1e8
+
 /* log Q(z) for the standard normal. */
 static double log_Q(double z)
 {
   if (z == INFINITY) return -INFINITY;
   if (z < 0.0) return log1p(-gsl_cdf_ugaussian_P(z));
   if (z < TN_DIRECT_Z) return log(gsl_cdf_ugaussian_Q(z));
+  /* (0.5 z) z: no overflow before the true value leaves the doubles */
+  if (z > TN_ASYMPTOTIC_Z) return -(0.5 * z) * z - log(z) - SP_DIST_LN_SQRT_2PI;
   return gsl_sf_log_erfc(z / SP_DIST_SQRT2) - SP_DIST_LN2;
 }
 
