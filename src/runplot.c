@@ -503,6 +503,8 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
     /* Points with a non-finite coordinate cannot be drawn. */
     double *x = in[best], *y = out[c->j];
     for (size_t s = 0; s < n; s++)
+      /* filled by sp_runplot_subsample for every s < n (not followed):
+       * NOLINTNEXTLINE(clang-analyzer-core.CallAndMessage) */
       if (isfinite(x[s]) && isfinite(y[s])) {
         x[kept] = x[s];
         y[kept] = y[s];
