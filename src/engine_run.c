@@ -416,7 +416,9 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
   for (size_t o = 0; o < nout; o++) {
     sp_engine_output *so = &outs[o];
     double *y = job.vals[o];
-    size_t m = engine_compact_finite(y, (size_t)samples);
+    /* the moments counted the non-finite values: compact only when any */
+    size_t m = so->nan + so->posinf + so->neginf ? engine_compact_finite(y, (size_t)samples)
+                                                 : (size_t)samples;
     double lo = so->min, hi = so->max;
     if (opt->hist_range && !isnan(opt->hist_range[2 * o])) {
       lo = opt->hist_range[2 * o];

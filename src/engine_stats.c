@@ -32,6 +32,9 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#if defined(__x86_64__) && defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 #include "scatterprop/stats.h"
 
@@ -61,17 +64,67 @@ static int64_t moments_shift(double big)
   return shift;
 }
 
-void engine_moments_block(const double *y, size_t n, engine_moments *m)
+/* A block is summed in MOMENT_LANES interleaved partial sums (value i goes
+ * to lane i mod MOMENT_LANES, the rest of the block to lane 0, and the
+ * lanes are added pairwise at the end): the lanes are independent chains
+ * of additions, which the compiler turns into vector instructions (the
+ * fixed-count inner loops vectorise at -O2, as the model's kernels do),
+ * instead of one chain that waits on each addition.  Blocks with a
+ * non-finite value (rare) take a scalar path that skips them.  The order
+ * of the additions is fixed by the block alone, so the figures do not
+ * depend on the thread count. */
+#define MOMENT_LANES 4
+
+/* Sums of the lanes, in a fixed order. */
+static double lanes_sum(const double *a) { return (a[0] + a[1]) + (a[2] + a[3]); }
+
+/* Sets the finite count, min, max and the non-finite counts of m from
+ * y[0..n); returns 1 when every value is finite. */
+static int moments_scan(const double *y, size_t n, engine_moments *m)
 {
-  engine_moments_zero(m);
-  double lo = INFINITY, hi = -INFINITY;
+  const size_t nl = n - n % MOMENT_LANES;
+  double lo[MOMENT_LANES], hi[MOMENT_LANES], fin[MOMENT_LANES];
+  for (size_t l = 0; l < MOMENT_LANES; l++) {
+    lo[l] = INFINITY;
+    hi[l] = -INFINITY;
+    fin[l] = 0.0;
+  }
+  /* min and max of the lanes (NaN compares false and drops out), and a
+   * sum of y - y that is NaN as soon as any value is infinite or NaN */
+  for (size_t i = 0; i < nl; i += MOMENT_LANES)
+    for (size_t l = 0; l < MOMENT_LANES; l++) {
+      const double v = y[i + l];
+      lo[l] = v < lo[l] ? v : lo[l];
+      hi[l] = v > hi[l] ? v : hi[l];
+      fin[l] += v - v;
+    }
+  double vlo = INFINITY, vhi = -INFINITY;
+  for (size_t l = 0; l < MOMENT_LANES; l++) {
+    vlo = lo[l] < vlo ? lo[l] : vlo;
+    vhi = hi[l] > vhi ? hi[l] : vhi;
+  }
+  int all = lanes_sum(fin) == 0.0;
+  for (size_t i = nl; i < n && all; i++) {
+    const double v = y[i];
+    all = isfinite(v);
+    vlo = v < vlo ? v : vlo;
+    vhi = v > vhi ? v : vhi;
+  }
+  if (all) {
+    m->n = n;
+    m->min = vlo;
+    m->max = vhi;
+    return 1;
+  }
   uint64_t c = 0;
+  vlo = INFINITY;
+  vhi = -INFINITY;
   for (size_t i = 0; i < n; i++) {
-    double v = y[i];
+    const double v = y[i];
     if (isfinite(v)) {
       c++;
-      lo = v < lo ? v : lo;
-      hi = v > hi ? v : hi;
+      vlo = v < vlo ? v : vlo;
+      vhi = v > vhi ? v : vhi;
     } else if (isnan(v)) {
       m->nan++;
     } else if (v > 0) {
@@ -81,38 +134,70 @@ void engine_moments_block(const double *y, size_t n, engine_moments *m)
     }
   }
   m->n = c;
+  m->min = c ? vlo : INFINITY;
+  m->max = c ? vhi : -INFINITY;
+  return 0;
+}
+
+void engine_moments_block(const double *y, size_t n, engine_moments *m)
+{
+  engine_moments_zero(m);
+  const int all = moments_scan(y, n, m);
+  const uint64_t c = m->n;
   if (c == 0) return;
-  m->min = lo;
-  m->max = hi;
-  const int64_t shift = moments_shift(fmax(fabs(lo), fabs(hi)));
+  const size_t nl = all ? n - n % MOMENT_LANES : 0; /* the lanes' share */
+  const int64_t shift = moments_shift(fmax(fabs(m->min), fabs(m->max)));
   const double sc = ldexp(1.0, (int)shift);
-  const double slo = lo * sc, shi = hi * sc;
-  double s = 0.0;
-  for (size_t i = 0; i < n; i++)
-    if (isfinite(y[i])) s += y[i] * sc;
-  double mean = s / (double)c;
-  /* Second pass: the correction of the mean (Chan, Golub & LeVeque 1983,
-   * The American Statistician 37(3), 242-247, eq. 1.7) and the central
-   * sums, all on the scaled values. */
-  double d1 = 0.0;
-  for (size_t i = 0; i < n; i++)
-    if (isfinite(y[i])) d1 += y[i] * sc - mean;
-  mean += d1 / (double)c;
+  const double slo = m->min * sc, shi = m->max * sc;
+  /* the mean of the scaled values */
+  double s[MOMENT_LANES] = {0.0};
+  for (size_t i = 0; i < nl; i += MOMENT_LANES)
+    for (size_t l = 0; l < MOMENT_LANES; l++) s[l] += y[i + l] * sc;
+  for (size_t i = nl; i < n; i++)
+    if (isfinite(y[i])) s[0] += y[i] * sc;
+  const double cn = (double)c;
+  double mean = lanes_sum(s) / cn;
   if (mean < slo) mean = slo;
   if (mean > shi) mean = shi;
-  double s2 = 0.0, s3 = 0.0, s4 = 0.0;
-  for (size_t i = 0; i < n; i++) {
+  /* The sums of powers of d = y sc - mean and of d itself, whose mean
+   * delta corrects the mean (Chan, Golub & LeVeque 1983, The American
+   * Statistician 37(3), 242-247, eq. 1.7: the corrected two-pass
+   * algorithm).  The central sums about the corrected mean follow by the
+   * binomial expansion with S1 = c delta:
+   *   M2 = S2 - delta S1,  M3 = S3 - 3 delta S2 + 2 c delta^3,
+   *   M4 = S4 - 4 delta S3 + 6 delta^2 S2 - 3 c delta^4;
+   * delta is of the order of the rounding of the mean, so the corrections
+   * are tiny and cancel nothing. */
+  double a1[MOMENT_LANES] = {0.0}, a2[MOMENT_LANES] = {0.0}, a3[MOMENT_LANES] = {0.0},
+         a4[MOMENT_LANES] = {0.0};
+  for (size_t i = 0; i < nl; i += MOMENT_LANES)
+    for (size_t l = 0; l < MOMENT_LANES; l++) {
+      const double d = y[i + l] * sc - mean, d2 = d * d;
+      a1[l] += d;
+      a2[l] += d2;
+      a3[l] += d2 * d;
+      a4[l] += d2 * d2;
+    }
+  for (size_t i = nl; i < n; i++) {
     if (!isfinite(y[i])) continue;
-    double d = y[i] * sc - mean, d2 = d * d;
-    s2 += d2;
-    s3 += d2 * d;
-    s4 += d2 * d2;
+    const double d = y[i] * sc - mean, d2 = d * d;
+    a1[0] += d;
+    a2[0] += d2;
+    a3[0] += d2 * d;
+    a4[0] += d2 * d2;
   }
+  const double s1 = lanes_sum(a1), s2 = lanes_sum(a2), s3 = lanes_sum(a3), s4 = lanes_sum(a4);
+  const double delta = s1 / cn, dl2 = delta * delta;
+  double m2 = s2 - delta * s1;
+  if (m2 < 0.0) m2 = 0.0;
+  mean += delta;
+  if (mean < slo) mean = slo;
+  if (mean > shi) mean = shi;
   m->shift = shift;
   m->mean = ldexp(mean, (int)-shift);
-  m->m2 = s2;
-  m->m3 = s3;
-  m->m4 = s4;
+  m->m2 = m2;
+  m->m3 = s3 - 3.0 * delta * s2 + 2.0 * cn * dl2 * delta;
+  m->m4 = s4 - 4.0 * delta * s3 + 6.0 * dl2 * s2 - 3.0 * cn * dl2 * dl2;
 }
 
 double engine_moments_sd(const engine_moments *m)
@@ -226,53 +311,73 @@ static void multiselect(double *y, size_t lo, size_t hi, const size_t *t, size_t
  * stream, so the work is reproducible) gives a value a above the (M - q)-th
  * smallest and b below the (M - q)-th largest with overwhelming
  * probability (6 binomial standard deviations of subsample rank, plus 2).
- * Pass 1 counts the values below a, above b, and in each of BRACKET_BINS
- * equal bins of [a, b]; pass 2 copies the two tails (which the shortest
+ * Each value goes to a slot: 0 below a (the low tail), 1..BRACKET_BINS for
+ * equal bins of [a, b], BRACKET_BINS + 1 above b (the high tail), by a
+ * formula that is monotone in the value, so the slots are ordered.  Pass 1
+ * counts the slots; pass 2 copies the two tails (which the shortest
  * interval needs sorted anyway) and the few bins that hold a wanted order
- * statistic.  The tails are radix-sorted, the wanted bins sorted, and the
- * order statistics read off by their ranks: exact, in two streaming passes.
- * If a bracket misses (counts below or above fall short, as heavily tied
- * data can make them), the selection path is taken instead.  Bracketing
- * from a subsample is the idea of Floyd, R.W. & Rivest, R.L. (1975).
- * Expected time bounds for selection. Communications of the ACM 18(3),
- * 165-172, applied here to many ranks at once. */
+ * statistic, each slot to its own stretch of one buffer.  Both passes are
+ * free of branches on the data (a slot not wanted writes to a spare cell
+ * without advancing), so random data costs no mispredictions.  The
+ * stretches are sorted and the order statistics read off by their ranks:
+ * exact, in two streaming passes.  If a bracket misses (the tails hold
+ * fewer than M - q values, as heavily tied data can make them), the
+ * selection path is taken instead.  Bracketing from a subsample is the
+ * idea of Floyd, R.W. & Rivest, R.L. (1975). Expected time bounds for
+ * selection. Communications of the ACM 18(3), 165-172, applied here to
+ * many ranks at once. */
 #define BRACKET_MIN 131072u   /* below this, selection is as fast */
 #define BRACKET_SUB 65536u    /* subsample size */
-#define BRACKET_BINS 65536u   /* bins of the middle range */
+#define BRACKET_BINS 16384u   /* bins of the middle range (their counters stay in L2) */
+#define BRACKET_SLOTS (BRACKET_BINS + 2u)
 #define BRACKET_SIGMAS 6.0    /* bracket half-width in rank standard deviations */
 
-static int cmp_dbl(const void *pa, const void *pb)
+/* The slot of v: floor((v - a) scale) + 1 clamped to [0, BRACKET_BINS + 1].
+ * On x86-64 the clamps are the SSE2 instructions maxsd and minsd, whose
+ * results equal the C selects below (NaN, which finite data cannot give,
+ * goes to 0 in both): GCC 12 keeps the selects as branches, which random
+ * data mispredicts.  Either way only the speed depends on it: any
+ * monotone slot function gives the same order statistics. */
+static inline size_t slot_of(double v, double a, double scale)
 {
-  double a = *(const double *)pa, b = *(const double *)pb;
-  return (a > b) - (a < b);
+  const double top = (double)(BRACKET_BINS + 1u);
+#if defined(__x86_64__) && defined(__SSE2__)
+  __m128d u = _mm_set_sd((v - a) * scale + 1.0);
+  u = _mm_max_sd(u, _mm_setzero_pd());
+  u = _mm_min_sd(u, _mm_set_sd(top));
+  return (size_t)_mm_cvttsd_si64(u);
+#else
+  double u = (v - a) * scale + 1.0;
+  u = u > 0.0 ? u : 0.0;
+  u = u < top ? u : top;
+  return (size_t)u;
+#endif
 }
 
 typedef struct {
-  size_t m, nlow, nhigh;   /* values below a, above b */
-  const double *low, *high; /* sorted */
-  const size_t *cum;       /* cum[b]: values below bin b (from a) */
-  const size_t *off;       /* start of bin b's sorted copy in mid */
-  const double *mid;
+  size_t m;
+  const size_t *cum;        /* cum[s]: values in slots below s */
+  const size_t *off;        /* start of slot s's sorted stretch in buf */
+  const double *buf;
 } bracket;
 
-static double bracket_get(const bracket *br, size_t t)
+/* The slot holding rank t: the last s with cum[s] <= t. */
+static size_t slot_of_rank(const size_t *cum, size_t t)
 {
-  if (t < br->nlow) return br->low[t];
-  if (t >= br->m - br->nhigh) return br->high[t - (br->m - br->nhigh)];
-  /* the bin holding rank t: the last b with cum[b] <= t */
-  size_t lo = 0, hi = BRACKET_BINS;
+  size_t lo = 0, hi = BRACKET_SLOTS;
   while (hi - lo > 1) {
     size_t md = lo + (hi - lo) / 2;
-    if (br->cum[md] <= t) lo = md;
+    if (cum[md] <= t) lo = md;
     else hi = md;
   }
-  return br->mid[br->off[lo] + (t - br->cum[lo])];
+  return lo;
 }
 
-static size_t bin_of(double v, double a, double scale)
+/* The order statistic of rank t (its slot was copied and sorted). */
+static double bracket_get(const bracket *br, size_t t)
 {
-  size_t b = (size_t)((v - a) * scale);
-  return b < BRACKET_BINS ? b : BRACKET_BINS - 1;
+  size_t s = slot_of_rank(br->cum, t);
+  return br->buf[br->off[s] + (t - br->cum[s])];
 }
 
 /* Returns 1 and fills pct and o when the bracketing succeeds, 0 to fall back,
@@ -281,17 +386,18 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
                                size_t qq, size_t tail, int have_sym, size_t s_lo,
                                size_t s_hi, double *pct, sp_engine_output *o)
 {
+  enum { HIGH = BRACKET_BINS + 1u };
   int ret = -1;
   double *sub = malloc(BRACKET_SUB * sizeof *sub);
   uint64_t *tmp = malloc(2 * BRACKET_SUB * sizeof *tmp);
-  size_t *cnt = calloc(BRACKET_BINS, sizeof *cnt);
-  size_t *cum = malloc(BRACKET_BINS * sizeof *cum);
-  size_t *off = malloc(BRACKET_BINS * sizeof *off);
-  size_t *fill = calloc(BRACKET_BINS, sizeof *fill);
-  unsigned char *need = calloc(BRACKET_BINS, 1);
-  double *low = NULL, *high = NULL, *mid = NULL;
+  size_t *cnt = calloc(BRACKET_SLOTS, sizeof *cnt);
+  size_t *cum = malloc(BRACKET_SLOTS * sizeof *cum);
+  size_t *off = malloc(BRACKET_SLOTS * sizeof *off);
+  size_t *pos = malloc(BRACKET_SLOTS * sizeof *pos);
+  size_t *inc = calloc(BRACKET_SLOTS, sizeof *inc);
+  double *buf = NULL;
   uint64_t *stmp = NULL;
-  if (!sub || !tmp || !cnt || !cum || !off || !fill || !need) goto out;
+  if (!sub || !tmp || !cnt || !cum || !off || !pos || !inc) goto out;
 
   sp_pcg64 g;
   sp_rng_block_stream(&g, m, 0, 0); /* positions depend on m only */
@@ -303,24 +409,20 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
   ret = 0;
   if (!(ra < rb && rb < ms && ra >= 0)) goto out;
   const double a = sub[(size_t)ra], b = sub[(size_t)rb];
-  if (!(a < b)) goto out;
   const double scale = (double)BRACKET_BINS / (b - a);
+  if (!(a < b) || !isfinite(scale)) goto out;
 
   /* pass 1: counts */
-  size_t nlow = 0, nhigh = 0;
-  for (size_t i = 0; i < m; i++) {
-    double v = y[i];
-    if (v < a) nlow++;
-    else if (v > b) nhigh++;
-    else cnt[bin_of(v, a, scale)]++;
-  }
+  for (size_t i = 0; i < m; i++) cnt[slot_of(y[i], a, scale)]++;
+  const size_t nlow = cnt[0], nhigh = cnt[HIGH];
   if (nlow < tail || nhigh < tail) goto out;
-  size_t c = nlow;
-  for (size_t k = 0; k < BRACKET_BINS; k++) {
+  size_t c = 0;
+  for (size_t k = 0; k < BRACKET_SLOTS; k++) {
     cum[k] = c;
     c += cnt[k];
   }
-  /* the wanted ranks in the middle */
+  /* the slots to copy: both tails, and those of the wanted ranks */
+  inc[0] = inc[HIGH] = 1;
   for (size_t i = 0; i < np + 1; i++) {
     size_t cand[2];
     size_t nc = 0;
@@ -334,51 +436,35 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
       cand[nc++] = s_lo;
       cand[nc++] = s_hi;
     }
-    for (size_t q = 0; q < nc; q++) {
-      size_t t = cand[q];
-      if (t < nlow || t >= m - nhigh) continue;
-      size_t lo = 0, hi = BRACKET_BINS;
-      while (hi - lo > 1) {
-        size_t md = lo + (hi - lo) / 2;
-        if (cum[md] <= t) lo = md;
-        else hi = md;
-      }
-      need[lo] = 1;
+    for (size_t q = 0; q < nc; q++) inc[slot_of_rank(cum, cand[q])] = 1;
+  }
+  size_t ncopy = 0, big = 0;
+  for (size_t k = 0; k < BRACKET_SLOTS; k++) {
+    off[k] = ncopy;
+    if (inc[k]) {
+      ncopy += cnt[k];
+      if (cnt[k] > big) big = cnt[k];
     }
   }
-  size_t nmid = 0;
-  for (size_t k = 0; k < BRACKET_BINS; k++) {
-    off[k] = nmid;
-    if (need[k]) nmid += cnt[k];
-  }
+  for (size_t k = 0; k < BRACKET_SLOTS; k++) pos[k] = inc[k] ? off[k] : ncopy; /* spare cell */
   ret = -1;
-  low = malloc(nlow * sizeof *low);
-  high = malloc(nhigh * sizeof *high);
-  mid = malloc((nmid ? nmid : 1) * sizeof *mid);
-  size_t big = nlow > nhigh ? nlow : nhigh;
-  stmp = malloc(2 * big * sizeof *stmp);
-  if (!low || !high || !mid || !stmp) goto out;
+  buf = malloc((ncopy + 1) * sizeof *buf);
+  stmp = malloc(2 * (big ? big : 1) * sizeof *stmp);
+  if (!buf || !stmp) goto out;
 
   /* pass 2: copies */
-  size_t il = 0, ih = 0;
   for (size_t i = 0; i < m; i++) {
-    double v = y[i];
-    if (v < a) {
-      low[il++] = v;
-    } else if (v > b) {
-      high[ih++] = v;
-    } else {
-      size_t k = bin_of(v, a, scale);
-      if (need[k]) mid[off[k] + fill[k]++] = v;
-    }
+    const double v = y[i];
+    const size_t k = slot_of(v, a, scale);
+    buf[pos[k]] = v;
+    pos[k] += inc[k];
   }
-  engine_sort_doubles(low, nlow, stmp);
-  engine_sort_doubles(high, nhigh, stmp);
-  for (size_t k = 0; k < BRACKET_BINS; k++)
-    if (need[k] && cnt[k] > 1) qsort(mid + off[k], cnt[k], sizeof *mid, cmp_dbl);
+  for (size_t k = 0; k < BRACKET_SLOTS; k++)
+    if (inc[k] && cnt[k] > 1) engine_sort_doubles(buf + off[k], cnt[k], stmp);
 
-  bracket br = {m, nlow, nhigh, low, high, cum, off, mid};
-  /* shortest interval: y_(r) = low[r], y_(r+q) from high */
+  bracket br = {m, cum, off, buf};
+  /* shortest interval: y_(r) = low[r], y_(r+q) from the high tail */
+  const double *low = buf, *high = buf + off[HIGH];
   size_t best = 0;
   double w = INFINITY;
   const size_t base = m - nhigh;
@@ -409,11 +495,9 @@ out:
   free(cnt);
   free(cum);
   free(off);
-  free(fill);
-  free(need);
-  free(low);
-  free(high);
-  free(mid);
+  free(pos);
+  free(inc);
+  free(buf);
   free(stmp);
   return ret;
 }

@@ -796,15 +796,19 @@ START_TEST(test_against_kept_samples)
    * intervals a full sort's order statistics; the moments
    * sp_stats_describe's; the histogram a direct count; NaN and infinities
    * counted, not folded. */
-  /* Three cases: a small run (selection), a large one (the bracketing
-   * passes, above 2^17 values) and a large one with heavily tied values
-   * (rounded to 0.5: the brackets miss and selection takes over). */
-  for (int cas = 0; cas < 3; cas++) {
+  /* Four cases: a small run (selection), a large one (the bracketing
+   * passes, above 2^17 values), a large one with heavily tied values
+   * (rounded to 0.5: the brackets miss and selection takes over), and the
+   * large one again with histogram ranges that leave values below and
+   * above (counted in the bracketing's first pass). */
+  for (int cas = 0; cas < 4; cas++) {
   const double cst[] = {2.0, 1.8, cas == 2 ? 1.0 : 0.0};
+  const double hrange[] = {-1.0, 1.5, 0.25, 3.0};
   model_ctx mc = {m_nan, cst};
   sp_evaluator ev = evaluator(&mc, 2, 2);
   sp_engine_input in[2] = {input(&fam_normal, 0, 1, "a"), input(&fam_normal, 0, 1, "b")};
   const size_t N = cas == 0 ? 50001 : 300007; /* not multiples of the block */
+  const int ranged = cas == 3;
   double extra[] = {33.3, 12.5};
   sp_engine_options o = opts(N, 99 + cas);
   o.block = 1000;
@@ -813,6 +817,7 @@ START_TEST(test_against_kept_samples)
   o.npercentiles = 2;
   o.hist_bins = 17;
   o.threads = 2;
+  if (ranged) o.hist_range = hrange;
   sp_engine_result r;
   run_ok(in, 2, &ev, &o, &r);
   ck_assert_uint_eq(r.samples, N);
@@ -858,21 +863,30 @@ START_TEST(test_against_kept_samples)
     for (size_t t = 0; t + q < m; t++)
       if (w[t + q] - w[t] < w[best + q] - w[best]) best = t;
     ck_assert(y->short_lo == w[best] && y->short_hi == w[best + q]);
-    /* histogram over [min, max] */
-    uint64_t tot = 0;
+    /* histogram over [min, max], or the given range: bins [lo + i w,
+     * lo + (i + 1) w), the last one closed, the rest below or above */
+    const double hlo = ranged ? hrange[2 * k] : d.min, hhi = ranged ? hrange[2 * k + 1] : d.max;
+    ck_assert(y->hist_lo == hlo && y->hist_hi == hhi);
+    uint64_t tot = 0, below = 0, above = 0;
+    for (size_t s = 0; s < m; s++) {
+      below += f[s] < hlo;
+      above += f[s] > hhi;
+    }
     for (size_t b = 0; b < 17; b++) {
       uint64_t want = 0;
-      double bw = (d.max - d.min) / 17;
       for (size_t s = 0; s < m; s++) {
-        size_t bi = (size_t)((f[s] - d.min) * (17 / (d.max - d.min)));
+        if (f[s] < hlo || f[s] > hhi) continue;
+        size_t bi = (size_t)((f[s] - hlo) * (17 / (hhi - hlo)));
         if (bi >= 17) bi = 16;
         want += bi == b;
       }
-      (void)bw;
       ck_assert_uint_eq(r.hist[k * 17 + b], want);
       tot += r.hist[k * 17 + b];
     }
-    ck_assert_uint_eq(tot, m);
+    ck_assert_uint_eq(y->hist_below, below);
+    ck_assert_uint_eq(y->hist_above, above);
+    if (ranged) ck_assert(below > 1000 && above > 1000);
+    ck_assert_uint_eq(tot + below + above, m);
     free(w);
     free(f);
   }

@@ -12,9 +12,12 @@
  * F ~ weibull(shape 8, scale 120) N.
  *
  * Timed in the same run:
- *  - the engine ("mc", default block) with a hand-written evaluator, on 1
- *    and on 2 threads: moments, 15 percentiles, both 95% intervals and a
- *    histogram per output;
+ *  - the engine ("mc", default block) on the model compiled from the model
+ *    language (SPRING_MODEL below, the bytecode interpreter that
+ *    `scatterprop propagate` runs), on 1 and on 2 threads: moments, 15
+ *    percentiles, both 95% intervals and a histogram per output;
+ *  - the engine with a hand-written C evaluator of the same formulas, on 1
+ *    and 2 threads (what the interpreter costs over compiled C);
  *  - a straightforward scalar C loop of the same model with the same
  *    generators (the engine's block streams and the families' samplers,
  *    a block of each input at a time), Welford's running mean and
@@ -35,6 +38,7 @@
 
 #include "scatterprop/dist.h"
 #include "scatterprop/engine.h"
+#include "scatterprop/model.h"
 #include "scatterprop/rng.h"
 #include "scatterprop/stats.h"
 
@@ -64,6 +68,31 @@ static void spring_eval(void *ctx, void *ws, const double *const *in, size_t n,
   const double *d = in[0], *dm = in[1], *g = in[2], *f = in[3];
   double *rate = out[0], *stress = out[1];
   for (size_t i = 0; i < n; i++) spring(d[i], dm[i], g[i], f[i], &rate[i], &stress[i]);
+}
+
+/* The same model in the model language (G in MPa, so that no unit factor
+ * is applied and the bytecode computes what spring() computes). */
+static const char SPRING_MODEL[] =
+    "input d  [mm]  ~ normal(mean=2.0, sd=0.004)\n"
+    "input Dm [mm]  ~ normal(mean=16.0, sd=0.075)\n"
+    "input G  [MPa] ~ normal(mean=79300, sd=900)\n"
+    "input F  [N]   ~ weibull(shape=8, scale=120)\n"
+    "const n = 8\n"
+    "let C = Dm / d\n"
+    "output rate   [N/mm] = G * d^4 / (8 * Dm^3 * n)\n"
+    "output stress [MPa]  = ((4*C - 1)/(4*C - 4) + 0.615/C) * 8 * F * Dm / (pi * d^3)\n";
+
+static void *model_ws_alloc(void *ctx, size_t block)
+{
+  return sp_model_ws_alloc(ctx, block, NULL);
+}
+
+static void model_ws_free(void *ws) { sp_model_ws_free(ws); }
+
+static void model_eval(void *ctx, void *ws, const double *const *in, size_t n,
+                       double *const *out)
+{
+  sp_model_eval(ctx, ws, in, n, out);
 }
 
 typedef struct {
@@ -144,6 +173,17 @@ int main(int argc, char **argv)
     in[i].name = names[i];
   }
   sp_evaluator ev = {4, 2, NULL, NULL, NULL, spring_eval};
+  sp_model *model = NULL;
+  sp_model_diags diags;
+  sp_model_diags_init(&diags);
+  sp_error merr;
+  if (sp_model_compile("bench-spring.spm", SPRING_MODEL, strlen(SPRING_MODEL), &model, &diags,
+                       &merr) != SP_OK) {
+    fprintf(stderr, "bench_engine: the benchmark's model does not compile: %s\n", merr.msg);
+    return 1;
+  }
+  sp_model_diags_clear(&diags);
+  sp_evaluator mev = {4, 2, model, model_ws_alloc, model_ws_free, model_eval};
 
   sp_engine_options o;
   sp_engine_options_init(&o);
@@ -151,13 +191,14 @@ int main(int argc, char **argv)
   o.seed = SEED;
   sp_engine_timing tm;
   o.timing = &tm;
-  sp_engine_result r[2];
-  double t_eng[2], t_blocks[2], t_summary[2];
-  for (int t = 0; t < 2; t++) {
-    o.threads = t + 1;
+  /* r[0], r[1]: bytecode on 1 and 2 threads; r[2], r[3]: hand-written C */
+  sp_engine_result r[4];
+  double t_eng[4], t_blocks[4], t_summary[4];
+  for (int t = 0; t < 4; t++) {
+    o.threads = t % 2 + 1;
     sp_error err;
     double t0 = now();
-    if (sp_engine_run(in, 4, &ev, &o, &r[t], &err) != SP_OK) {
+    if (sp_engine_run(in, 4, t < 2 ? &mev : &ev, &o, &r[t], &err) != SP_OK) {
       fprintf(stderr, "bench_engine: %s\n", err.msg);
       return 1;
     }
@@ -173,36 +214,47 @@ int main(int argc, char **argv)
   }
   scalar_result sr;
   double t0 = now();
-  scalar_loop(in, n, o.block, r[0].pct_p, r[0].npct, y0, y1, &sr);
+  scalar_loop(in, n, o.block, r[2].pct_p, r[2].npct, y0, y1, &sr);
   double t_scalar = now() - t0;
 
-  /* the scalar loop draws exactly the engine's samples */
-  int same = r[0].npct == 15;
-  double dmean = 0.0;
+  /* The scalar loop draws exactly the engine's samples and evaluates the
+   * hand-written formulas, so its percentiles must equal r[2]'s.  The
+   * bytecode rounds some products in another order (8 Dm^3 n), so it is
+   * compared within a relative 1e-12 (a few ulps) instead. */
+  int same = r[2].npct == 15, bytecode_close = 1;
+  double dmean = 0.0, dbyte = 0.0;
   for (int out = 0; out < 2 && same; out++) {
-    for (size_t i = 0; i < 15; i++)
-      if (sr.pct[out][i] != r[0].pct[out * 15 + i]) same = 0;
-    dmean = fmax(dmean, fabs(sr.mean[out] - r[0].out[out].mean) / r[0].out[out].sd);
+    for (size_t i = 0; i < 15; i++) {
+      if (sr.pct[out][i] != r[2].pct[out * 15 + i]) same = 0;
+      double ref = r[2].pct[out * 15 + i];
+      dbyte = fmax(dbyte, fabs(r[0].pct[out * 15 + i] - ref) / fabs(ref));
+    }
+    dmean = fmax(dmean, fabs(sr.mean[out] - r[2].out[out].mean) / r[2].out[out].sd);
+    dbyte = fmax(dbyte, fabs(r[0].out[out].mean - r[2].out[out].mean) / fabs(r[2].out[out].mean));
   }
-  int threads_same = memcmp(r[0].out, r[1].out, 2 * sizeof *r[0].out) == 0 &&
-                     memcmp(r[0].pct, r[1].pct, 30 * sizeof *r[0].pct) == 0;
+  if (!(dbyte < 1e-12)) bytecode_close = 0;
+  int threads_same = 1;
+  for (int t = 0; t < 4; t += 2)
+    threads_same = threads_same && memcmp(r[t].out, r[t + 1].out, 2 * sizeof *r[t].out) == 0 &&
+                   memcmp(r[t].pct, r[t + 1].pct, 30 * sizeof *r[t].pct) == 0;
 
   printf("samples %llu\n", (unsigned long long)n);
-  printf("engine_1t_s %.4f\n", t_eng[0]);
-  printf("engine_2t_s %.4f\n", t_eng[1]);
-  printf("engine_1t_blocks_s %.4f\n", t_blocks[0]);
-  printf("engine_1t_summary_s %.4f\n", t_summary[0]);
-  printf("engine_2t_blocks_s %.4f\n", t_blocks[1]);
-  printf("engine_2t_summary_s %.4f\n", t_summary[1]);
+  static const char *const label[4] = {"engine_1t", "engine_2t", "handc_1t", "handc_2t"};
+  for (int t = 0; t < 4; t++) {
+    printf("%s_s %.4f\n", label[t], t_eng[t]);
+    printf("%s_blocks_s %.4f\n", label[t], t_blocks[t]);
+    printf("%s_summary_s %.4f\n", label[t], t_summary[t]);
+    printf("%s_ns_per_sample %.2f\n", label[t], 1e9 * t_eng[t] / (double)n);
+  }
   printf("scalar_s %.4f\n", t_scalar);
-  printf("engine_1t_ns_per_sample %.2f\n", 1e9 * t_eng[0] / (double)n);
-  printf("engine_2t_ns_per_sample %.2f\n", 1e9 * t_eng[1] / (double)n);
   printf("scalar_ns_per_sample %.2f\n", 1e9 * t_scalar / (double)n);
   printf("ratio_scalar_over_engine_1t %.3f\n", t_scalar / t_eng[0]);
   printf("ratio_engine_1t_over_2t %.3f\n", t_eng[0] / t_eng[1]);
+  printf("ratio_bytecode_over_handc_1t %.3f\n", t_eng[0] / t_eng[2]);
   printf("summary_share_1t %.3f\n", t_summary[0] / t_eng[0]);
   printf("percentiles_identical_to_scalar %d\n", same);
   printf("mean_difference_in_sd %.3g\n", dmean);
+  printf("bytecode_max_rel_difference %.3g\n", dbyte);
   printf("threads_bit_identical %d\n", threads_same);
   printf("rate_mean %.6f rate_sd %.6f rate_p99.9 %.6f\n", r[0].out[0].mean, r[0].out[0].sd,
          r[0].pct[14]);
@@ -210,7 +262,7 @@ int main(int argc, char **argv)
          r[0].out[1].sd, r[0].pct[15 + 14]);
   free(y0);
   free(y1);
-  sp_engine_result_free(&r[0]);
-  sp_engine_result_free(&r[1]);
-  return same && threads_same ? 0 : 1;
+  for (int t = 0; t < 4; t++) sp_engine_result_free(&r[t]);
+  sp_model_free(model);
+  return same && threads_same && bytecode_close ? 0 : 1;
 }

@@ -1,6 +1,6 @@
 #!/usr/bin/python3
-"""Engine benchmark: runs bench_engine (engine on 1 and 2 threads, scalar C
-loop) and times the same computation vectorised in numpy in the same run,
+"""Engine benchmark: runs bench_engine (engine on the compiled model and with
+a hand-written C evaluator, each on 1 and 2 threads; a scalar C loop) and times the same computation vectorised in numpy in the same run,
 then prints the figures and the ratios against the goals.
 
     /usr/bin/python3 tests/bench/bench_engine.py BUILD/tests/bench_engine [N]
@@ -69,22 +69,28 @@ def main():
 
     e1, e2, sc = best["engine_1t_s"], best["engine_2t_s"], best["scalar_s"]
     print("spring model, %d samples, best of %d runs" % (n, REPEAT))
-    print("  engine, 1 thread   %8.3f s  %7.1f ns/sample  (blocks %.3f s, summaries %.3f s)"
-          % (e1, 1e9 * e1 / n, best["engine_1t_blocks_s"], best["engine_1t_summary_s"]))
-    print("  engine, 2 threads  %8.3f s  %7.1f ns/sample  (blocks %.3f s, summaries %.3f s)"
-          % (e2, 1e9 * e2 / n, best["engine_2t_blocks_s"], best["engine_2t_summary_s"]))
+    for key, what in (("engine_1t", "engine, 1 thread   "), ("engine_2t", "engine, 2 threads  "),
+                      ("handc_1t", "hand C, 1 thread   "), ("handc_2t", "hand C, 2 threads  ")):
+        t = best[key + "_s"]
+        print("  %s%8.3f s  %7.1f ns/sample  (blocks %.3f s, summaries %.3f s)"
+              % (what, t, 1e9 * t / n, best[key + "_blocks_s"], best[key + "_summary_s"]))
     print("  scalar C loop      %8.3f s  %7.1f ns/sample" % (sc, 1e9 * sc / n))
     print("  numpy              %8.3f s  %7.1f ns/sample" % (t_np, 1e9 * t_np / n))
+    print("(engine: the model compiled from the model language, as `propagate` runs it;"
+          " hand C: the same engine with the formulas as a C function)")
     print("ratios (goal in brackets)")
     print("  scalar / engine 1 thread   %6.2f   [>= 1]" % (sc / e1))
     print("  engine 1 / 2 threads       %6.2f   [>= 1.7]" % (e1 / e2))
     print("  numpy / engine 2 threads   %6.2f   [>= 5]" % (t_np / e2))
     print("  numpy / engine 1 thread    %6.2f" % (t_np / e1))
+    print("  bytecode / hand C, 1 thread %5.2f" % (e1 / best["handc_1t_s"]))
     print("  summaries share, 1 thread  %6.2f   [percentiles must not dominate]"
           % (best["engine_1t_summary_s"] / e1))
     print("  engine 1 thread ns/sample  %6.1f   [aim 25]" % (1e9 * e1 / n))
-    print("checks: percentiles identical to the scalar loop: %d; threads bit-identical: %d"
-          % (best["percentiles_identical_to_scalar"], best["threads_bit_identical"]))
+    print("checks: hand C percentiles identical to the scalar loop: %d; threads bit-identical: %d;"
+          " bytecode vs hand C max relative difference %.3g"
+          % (best["percentiles_identical_to_scalar"], best["threads_bit_identical"],
+             best["bytecode_max_rel_difference"]))
     print("numpy (1e6 samples): rate mean %.6f sd %.6f; stress mean %.4f sd %.4f p99.9 %.4f"
           % (npres[0][0], npres[0][1], npres[1][0], npres[1][1], npres[1][2][-1]))
     print("engine: " + " | ".join(l for l in text.splitlines() if l.startswith(("rate_", "stress_"))))
