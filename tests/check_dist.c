@@ -14,6 +14,7 @@
 #include <time.h>
 
 #include "scatterprop/dist.h"
+#include "../src/dist/dist_common.h" /* sp_dist_pow_block */
 
 static const sp_family *fam(const char *name)
 {
@@ -1372,7 +1373,8 @@ START_TEST(test_sampler_methods)
 {
   /* Each sampler is the method its comment names, checked draw by draw on
    * one block stream: mean + sd z and exp(meanlog + sdlog z) for ziggurat
-   * normals z; scale E^(1/shape), loc + that, E / rate, loc + E / rate,
+   * normals z; scale E^(1/shape) (the power by sp_dist_pow_block, whose
+   * accuracy test_pow_block checks), loc + that, E / rate, loc + E / rate,
    * loc -+ scale log E for ziggurat exponentials E (bit for bit: the same
    * operations).  The inversion samplers against the quantile functions
    * (sp_family_from_uniform) of the same open uniforms: logistic to 8 ulps
@@ -1396,13 +1398,14 @@ START_TEST(test_sampler_methods)
     const int normal = k < 2;
     sp_rng_block_stream(&g, 4242u, k, 0u);
     (normal ? sp_rng_fill_normal : sp_rng_fill_exponential)(&g, ref, N);
+    if (k == 2 || k == 3) sp_dist_pow_block(ref, N, 1.0 / t[0]); /* E^(1/shape) */
     for (int i = 0; i < N; i++) {
       const double z = ref[i];
       switch (k) {
       case 0: ref[i] = t[0] + t[1] * z; break;
       case 1: ref[i] = exp(t[0] + t[1] * z); break;
-      case 2: ref[i] = t[1] * pow(z, 1.0 / t[0]); break;
-      case 3: ref[i] = t[2] + t[1] * pow(z, 1.0 / t[0]); break;
+      case 2: ref[i] = t[1] * z; break;
+      case 3: ref[i] = t[2] + t[1] * z; break;
       case 4: ref[i] = z / t[0]; break;
       case 5: ref[i] = t[1] + z / t[0]; break;
       case 6: ref[i] = t[0] - t[1] * log(z); break;
@@ -2057,6 +2060,64 @@ START_TEST(test_beta_large_shapes_refused)
 }
 END_TEST
 
+/* sp_dist_pow_block (block_pow.c) against the C library's pow (glibc's,
+ * correctly rounded in nearly all cases: under 1 ulp): within (2 |y| + 4)
+ * ulps, y = c log x (the rounding of y itself, an ulp, is 2 |y| ulps of
+ * exp y), on exponential draws (what the Weibull sampler feeds
+ * it), on uniforms over many binades, and exactly pow's value where the
+ * block hands over to pow (zero, subnormal, infinite, |y| >= 700). */
+static double ulps_apart(double a, double b)
+{
+  if (a == b) return 0.0;
+  return fabs(a - b) / (nextafter(fabs(b), INFINITY) - fabs(b));
+}
+
+START_TEST(test_pow_block)
+{
+  enum { N = 20003 }; /* not a multiple of the block's chunk */
+  static double x[N], y[N];
+  const double cs[] = {2.0, 1.0, 0.5, 1.0 / 3.7, 0.125, 0.02, -1.5, 1.0 / 0.3};
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 4242u, 0, 0);
+  for (size_t k = 0; k < sizeof cs / sizeof cs[0]; k++) {
+    for (int set = 0; set < 2; set++) {
+      if (set == 0) sp_rng_fill_exponential(&g, x, N);
+      else
+        for (int i = 0; i < N; i++) x[i] = ldexp(1.0 + sp_rng_uniform(&g), -200 + i % 400);
+      memcpy(y, x, sizeof y);
+      sp_dist_pow_block(y, N, cs[k]);
+      double worst = 0.0;
+      for (int i = 0; i < N; i++) {
+        const double want = pow(x[i], cs[k]);
+        const double lim = 2.0 * fabs(cs[k] * log(x[i])) + 4.0;
+        const double u = ulps_apart(y[i], want);
+        ck_assert_msg(u <= lim, "c %g x %.17g: %.17g vs pow %.17g (%.1f ulps, limit %.1f)",
+                      cs[k], x[i], y[i], want, u, lim);
+        if (u > worst) worst = u;
+      }
+      /* Weibull use: exponential draws, shape 1 and more: a dozen ulps */
+      if (set == 0 && fabs(cs[k]) <= 1.0)
+        ck_assert_msg(worst <= 12.0, "c %g: worst %.1f ulps", cs[k], worst);
+    }
+  }
+  const double edge[] = {0.0, 4.9e-324, 2.0e-310, DBL_MIN, 1.0, 1e300, DBL_MAX, INFINITY, 3.0};
+  const size_t ne = sizeof edge / sizeof edge[0];
+  const double cedge[] = {0.5, 3.0, 800.0, -2.0};
+  for (size_t k = 0; k < sizeof cedge / sizeof cedge[0]; k++) {
+    double e[sizeof edge / sizeof edge[0]];
+    memcpy(e, edge, sizeof e);
+    sp_dist_pow_block(e, ne, cedge[k]);
+    for (size_t i = 0; i < ne; i++) {
+      const double want = pow(edge[i], cedge[k]);
+      const int same = e[i] == want || (isnan(e[i]) && isnan(want));
+      const int close = ulps_apart(e[i], want) <= 2.0 * fabs(cedge[k] * log(edge[i])) + 4.0;
+      ck_assert_msg(same || (edge[i] >= DBL_MIN && edge[i] <= DBL_MAX && close),
+                    "c %g x %g: %.17g vs pow %.17g", cedge[k], edge[i], e[i], want);
+    }
+  }
+}
+END_TEST
+
 static Suite *dist_suite(void)
 {
   Suite *s = suite_create("dist");
@@ -2085,6 +2146,7 @@ static Suite *dist_suite(void)
   tcase_add_test(tc, test_truncnormal_tiny_sd);
   tcase_add_test(tc, test_triangular_extreme_widths);
   tcase_add_test(tc, test_beta_large_shapes_refused);
+  tcase_add_test(tc, test_pow_block);
   suite_add_tcase(s, tc);
   /* 23 sets of 10^5 draws with their CDFs: about 0.5 s in a release build,
    * 1 s of CPU under the sanitizers (Debug). */
