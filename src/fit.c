@@ -635,8 +635,18 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
   if (nf == 0) return sp_fail(err, SP_EUSAGE, "fit: no candidate families");
   for (size_t i = 0; i < opt->nfixed; i++) {
     int found = 0;
-    for (size_t j = 0; j < nf && !found; j++)
-      found = sp_family_param_index(fams[j], opt->fixed[i].name) >= 0;
+    for (size_t j = 0; j < nf; j++) {
+      const int p = sp_family_param_index(fams[j], opt->fixed[i].name);
+      if (p < 0) continue;
+      found = 1;
+      /* a scale or shape held at a value no fit could have is the
+       * caller's mistake, not the data's */
+      if (fams[j]->param_kinds[p] == SP_PARAM_POSITIVE && !(opt->fixed[i].value > 0.0)) {
+        sp_fail(err, SP_EUSAGE, "fixed parameter %s = %g: %s needs %s > 0", opt->fixed[i].name,
+                opt->fixed[i].value, fams[j]->name, opt->fixed[i].name);
+        return sp_error_hint(err, "give a positive value, or leave %s free", opt->fixed[i].name);
+      }
+    }
     if (!found)
       return sp_fail(err, SP_EUSAGE, "fixed parameter '%s' belongs to none of the candidate "
                      "families", opt->fixed[i].name);

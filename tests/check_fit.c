@@ -622,6 +622,16 @@ START_TEST(test_fixed_counts)
   sp_fit_result r;
   ck_assert_int_eq(sp_fit_run(x, 10, &bad, &r, &e), SP_EUSAGE);
   ck_assert_msg(strstr(e.msg, "nosuch") != NULL, "%s", e.msg);
+  /* So is a scale held at a value no fit could have, naming the value
+   * (not a numerical failure blamed on the data). */
+  for (int k = 0; k < 2; k++) {
+    bad = o;
+    sp_fit_options_fix(&bad, nf->param_names[1], k ? 0.0 : -1.0, &e);
+    ck_assert_int_eq(sp_fit_run(x, 10, &bad, &r, &e), SP_EUSAGE);
+    ck_assert_msg(strstr(e.msg, k ? "sd = 0: normal needs sd > 0" : "sd = -1: normal needs sd > 0"),
+                  "%s", e.msg);
+    ck_assert_msg(strstr(e.hint, "positive value"), "%s", e.hint);
+  }
 }
 END_TEST
 
