@@ -201,6 +201,11 @@ static void engine_setup(sp_run *r, sp_engine_corr *corr, sp_engine_limit *lim,
     lim[k].direction = l->dir == SP_MODEL_LIMIT_BELOW ? SP_ENGINE_BELOW : SP_ENGINE_ABOVE;
     lim[k].value = l->value;
   }
+  sp_run_model_evaluator(m, ev);
+}
+
+void sp_run_model_evaluator(const sp_model *m, sp_evaluator *ev)
+{
   ev->ninputs = sp_model_input_count(m);
   ev->noutputs = sp_model_output_count(m);
   ev->ctx = (void *)(uintptr_t)m; /* the evaluator only reads the model */

@@ -57,6 +57,13 @@ const char *sp_run_model_text(const sp_run *r);
 size_t sp_run_fit_count(const sp_run *r);
 const sp_run_fit_source *sp_run_fit_at(const sp_run *r, size_t k);
 
+/* The engine's evaluator for the compiled model m (borrowed: m must outlive
+ * the runs), as sp_run_execute uses it: a workspace per thread, sized to
+ * the engine's block.  (Evaluating a 4096-sample block in stretches of
+ * 128 to 2048 samples, registers in the first-level cache, was measured no
+ * faster on the spring model: 5.2 to 5.7 ns a sample either way.) */
+void sp_run_model_evaluator(const sp_model *m, sp_evaluator *ev);
+
 /* Bytes the run would need with these options (for the refusal message). */
 sp_status sp_run_memory_needed(const sp_run *r, const sp_run_options *opt, uint64_t *bytes,
                                sp_error *err);

@@ -40,6 +40,7 @@
 #include "scatterprop/engine.h"
 #include "scatterprop/model.h"
 #include "scatterprop/rng.h"
+#include "scatterprop/run.h"
 #include "scatterprop/stats.h"
 
 #define NA_COILS 8.0
@@ -81,19 +82,6 @@ static const char SPRING_MODEL[] =
     "let C = Dm / d\n"
     "output rate   [N/mm] = G * d^4 / (8 * Dm^3 * n)\n"
     "output stress [MPa]  = ((4*C - 1)/(4*C - 4) + 0.615/C) * 8 * F * Dm / (pi * d^3)\n";
-
-static void *model_ws_alloc(void *ctx, size_t block)
-{
-  return sp_model_ws_alloc(ctx, block, NULL);
-}
-
-static void model_ws_free(void *ws) { sp_model_ws_free(ws); }
-
-static void model_eval(void *ctx, void *ws, const double *const *in, size_t n,
-                       double *const *out)
-{
-  sp_model_eval(ctx, ws, in, n, out);
-}
 
 typedef struct {
   double mean[2], sd[2], pct[2][15];
@@ -183,7 +171,8 @@ int main(int argc, char **argv)
     return 1;
   }
   sp_model_diags_clear(&diags);
-  sp_evaluator mev = {4, 2, model, model_ws_alloc, model_ws_free, model_eval};
+  sp_evaluator mev;
+  sp_run_model_evaluator(model, &mev); /* as propagate evaluates it */
 
   sp_engine_options o;
   sp_engine_options_init(&o);
