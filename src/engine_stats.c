@@ -79,24 +79,26 @@ static int64_t moments_shift(double big)
 static double lanes_sum(const double *a) { return (a[0] + a[1]) + (a[2] + a[3]); }
 
 /* Sets the finite count, min, max and the non-finite counts of m from
- * y[0..n); returns 1 when every value is finite. */
-static int moments_scan(const double *y, size_t n, engine_moments *m)
+ * y[0..n); returns 1 when every value is finite, and then *sum is the sum
+ * of the values (in the lanes, unscaled; it may have overflowed). */
+static int moments_scan(const double *y, size_t n, engine_moments *m, double *sum)
 {
   const size_t nl = n - n % MOMENT_LANES;
-  double lo[MOMENT_LANES], hi[MOMENT_LANES], fin[MOMENT_LANES];
+  double lo[MOMENT_LANES], hi[MOMENT_LANES], fin[MOMENT_LANES], s[MOMENT_LANES];
   for (size_t l = 0; l < MOMENT_LANES; l++) {
     lo[l] = INFINITY;
     hi[l] = -INFINITY;
-    fin[l] = 0.0;
+    fin[l] = s[l] = 0.0;
   }
-  /* min and max of the lanes (NaN compares false and drops out), and a
-   * sum of y - y that is NaN as soon as any value is infinite or NaN */
+  /* min and max of the lanes (NaN compares false and drops out), a sum of
+   * y - y that is NaN as soon as any value is infinite or NaN, and the sum */
   for (size_t i = 0; i < nl; i += MOMENT_LANES)
     for (size_t l = 0; l < MOMENT_LANES; l++) {
       const double v = y[i + l];
       lo[l] = v < lo[l] ? v : lo[l];
       hi[l] = v > hi[l] ? v : hi[l];
       fin[l] += v - v;
+      s[l] += v;
     }
   double vlo = INFINITY, vhi = -INFINITY;
   for (size_t l = 0; l < MOMENT_LANES; l++) {
@@ -109,11 +111,13 @@ static int moments_scan(const double *y, size_t n, engine_moments *m)
     all = isfinite(v);
     vlo = v < vlo ? v : vlo;
     vhi = v > vhi ? v : vhi;
+    s[0] += v;
   }
   if (all) {
     m->n = n;
     m->min = vlo;
     m->max = vhi;
+    *sum = lanes_sum(s);
     return 1;
   }
   uint64_t c = 0;
@@ -142,21 +146,30 @@ static int moments_scan(const double *y, size_t n, engine_moments *m)
 void engine_moments_block(const double *y, size_t n, engine_moments *m)
 {
   engine_moments_zero(m);
-  const int all = moments_scan(y, n, m);
+  double sum = 0.0;
+  const int all = moments_scan(y, n, m, &sum);
   const uint64_t c = m->n;
   if (c == 0) return;
   const size_t nl = all ? n - n % MOMENT_LANES : 0; /* the lanes' share */
-  const int64_t shift = moments_shift(fmax(fabs(m->min), fabs(m->max)));
+  const double big = fmax(fabs(m->min), fabs(m->max));
+  const int64_t shift = moments_shift(big);
   const double sc = ldexp(1.0, (int)shift);
   const double slo = m->min * sc, shi = m->max * sc;
-  /* the mean of the scaled values */
-  double s[MOMENT_LANES] = {0.0};
-  for (size_t i = 0; i < nl; i += MOMENT_LANES)
-    for (size_t l = 0; l < MOMENT_LANES; l++) s[l] += y[i + l] * sc;
-  for (size_t i = nl; i < n; i++)
-    if (isfinite(y[i])) s[0] += y[i] * sc;
   const double cn = (double)c;
-  double mean = lanes_sum(s) / cn;
+  /* The mean of the scaled values: the scan's sum times 2^shift (exact)
+   * when it neither overflowed nor was taken over values so small that
+   * they lose digits (then the scaled values are summed again). */
+  double mean;
+  if (all && isfinite(sum) && big >= 0x1p-960) {
+    mean = ldexp(sum, (int)shift) / cn;
+  } else {
+    double s[MOMENT_LANES] = {0.0};
+    for (size_t i = 0; i < nl; i += MOMENT_LANES)
+      for (size_t l = 0; l < MOMENT_LANES; l++) s[l] += y[i + l] * sc;
+    for (size_t i = nl; i < n; i++)
+      if (isfinite(y[i])) s[0] += y[i] * sc;
+    mean = lanes_sum(s) / cn;
+  }
   if (mean < slo) mean = slo;
   if (mean > shi) mean = shi;
   /* The sums of powers of d = y sc - mean and of d itself, whose mean
