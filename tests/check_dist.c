@@ -14,7 +14,6 @@
 #include <time.h>
 
 #include "scatterprop/dist.h"
-#include "../src/dist/dist_common.h" /* sp_dist_pow_block */
 
 static const sp_family *fam(const char *name)
 {
@@ -1373,7 +1372,7 @@ START_TEST(test_sampler_methods)
 {
   /* Each sampler is the method its comment names, checked draw by draw on
    * one block stream: mean + sd z and exp(meanlog + sdlog z) for ziggurat
-   * normals z; scale E^(1/shape) (the power by sp_dist_pow_block, whose
+   * normals z; scale E^(1/shape) (the power by sp_family_pow_block, whose
    * accuracy test_pow_block checks), loc + that, E / rate, loc + E / rate,
    * loc -+ scale log E for ziggurat exponentials E (bit for bit: the same
    * operations).  The inversion samplers against the quantile functions
@@ -1398,7 +1397,7 @@ START_TEST(test_sampler_methods)
     const int normal = k < 2;
     sp_rng_block_stream(&g, 4242u, k, 0u);
     (normal ? sp_rng_fill_normal : sp_rng_fill_exponential)(&g, ref, N);
-    if (k == 2 || k == 3) sp_dist_pow_block(ref, N, 1.0 / t[0]); /* E^(1/shape) */
+    if (k == 2 || k == 3) sp_family_pow_block(ref, N, 1.0 / t[0]); /* E^(1/shape) */
     for (int i = 0; i < N; i++) {
       const double z = ref[i];
       switch (k) {
@@ -2060,7 +2059,7 @@ START_TEST(test_beta_large_shapes_refused)
 }
 END_TEST
 
-/* sp_dist_pow_block (block_pow.c) against the C library's pow (glibc's,
+/* sp_family_pow_block (block_pow.c) against the C library's pow (glibc's,
  * correctly rounded in nearly all cases: under 1 ulp): within (2 |y| + 4)
  * ulps, y = c log x (the rounding of y itself, an ulp, is 2 |y| ulps of
  * exp y), on exponential draws (what the Weibull sampler feeds
@@ -2085,7 +2084,7 @@ START_TEST(test_pow_block)
       else
         for (int i = 0; i < N; i++) x[i] = ldexp(1.0 + sp_rng_uniform(&g), -200 + i % 400);
       memcpy(y, x, sizeof y);
-      sp_dist_pow_block(y, N, cs[k]);
+      sp_family_pow_block(y, N, cs[k]);
       double worst = 0.0;
       for (int i = 0; i < N; i++) {
         const double want = pow(x[i], cs[k]);
@@ -2106,7 +2105,7 @@ START_TEST(test_pow_block)
   for (size_t k = 0; k < sizeof cedge / sizeof cedge[0]; k++) {
     double e[sizeof edge / sizeof edge[0]];
     memcpy(e, edge, sizeof e);
-    sp_dist_pow_block(e, ne, cedge[k]);
+    sp_family_pow_block(e, ne, cedge[k]);
     for (size_t i = 0; i < ne; i++) {
       const double want = pow(edge[i], cedge[k]);
       const int same = e[i] == want || (isnan(e[i]) && isnan(want));

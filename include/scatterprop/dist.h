@@ -106,6 +106,14 @@ void sp_family_from_uniform(const sp_family *fam, const double *theta,
 double sp_family_loglik(const sp_family *fam, const double *theta,
                         const double *x, size_t n);
 
+/* For samplers (the library's Weibull and log-logistic ones, and a family
+ * defined outside it): x[i] <- x[i]^c for the n values of x, all positive,
+ * as a vectorised exp(c log x) of plain arithmetic (src/dist/block_pow.c),
+ * within some (2 |c log x| + 4) ulps of pow and independent of the libm
+ * version; zero, subnormal and infinite values and |c log x| >= 700 go to
+ * pow itself. */
+void sp_family_pow_block(double *x, size_t n, double c);
+
 #ifdef __cplusplus
 }
 #endif

@@ -99,7 +99,7 @@ static inline double exp_kernel(double y)
  * need no epilogue (as the model's kernels, src/model_eval.c). */
 #define CHUNK 8
 
-void sp_dist_pow_block(double *x, size_t n, double c)
+void sp_family_pow_block(double *x, size_t n, double c)
 {
   size_t i = 0;
   for (; i < n; i += CHUNK) {

@@ -23,11 +23,6 @@
 #define SP_DIST_LN2 0.69314718055994530942
 #define SP_DIST_SQRT2 1.41421356237309504880
 
-/* x[i] <- x[i]^c for the n values of x, all positive (block_pow.c: a
- * vectorised exp(c log x) within some (2 |c log x| + 4) ulps of pow; zero,
- * subnormal and infinite values and |c log x| >= 700 go to pow). */
-void sp_dist_pow_block(double *x, size_t n, double c);
-
 /* Nonzero when parameter i is flagged fixed (fixed may be NULL: none are). */
 static inline int sp_dist_is_fixed(const int *fixed, size_t i)
 {

@@ -87,14 +87,14 @@ static double quantile_Q(const double *t, double q)
 /* Inversion, scale (u / (1 - u))^(1/shape), of open uniforms u (u and
  * 1 - u exact, so no choice of tail is needed); the ratio's rounding, half
  * an ulp, becomes 1/(2 shape) ulp of the draw, and the power over the block
- * (sp_dist_pow_block, block_pow.c) adds some (2 |logit u| / shape + 4)
+ * (sp_family_pow_block, block_pow.c) adds some (2 |logit u| / shape + 4)
  * ulps: a relative 1e-14 at worst for shapes of 1 and more. */
 static void sample(const double *t, sp_pcg64 *g, double *out, size_t n)
 {
   sp_rng_fill_open(g, out, n);
   const double inv_k = 1.0 / t[SHAPE], s = t[SCALE];
   for (size_t i = 0; i < n; i++) out[i] = out[i] / (1.0 - out[i]);
-  sp_dist_pow_block(out, n, inv_k); /* (u / (1 - u))^(1/k), block_pow.c */
+  sp_family_pow_block(out, n, inv_k); /* (u / (1 - u))^(1/k), block_pow.c */
   for (size_t i = 0; i < n; i++) out[i] *= s;
 }
 
