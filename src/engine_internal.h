@@ -102,6 +102,13 @@ double engine_moments_sd(const engine_moments *m);
  * number kept. */
 size_t engine_compact_finite(double *y, size_t n);
 
+/* The bracketing of engine_order_stats: a subsample of BRACKET_SUB values,
+ * BRACKET_BINS equal bins between the tails (their counters stay in the
+ * second-level cache), and two slots for the tails. */
+#define BRACKET_SUB 65536u
+#define BRACKET_BINS 16384u
+#define BRACKET_SLOTS (BRACKET_BINS + 2u)
+
 /* Order statistics of y[0..m) (finite, rearranged): the percentiles p[0..np)
  * by Hyndman-Fan 7 into pct, and the JCGM 101 intervals at coverage cov. */
 sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,

@@ -260,7 +260,9 @@ uint64_t engine_run_bytes(const sp_engine_options *opt, size_t k, size_t nout,
   b += nblocks * (nout * sizeof(engine_moments) + 1);
   uint64_t par = (uint64_t)threads < nout ? (uint64_t)threads : nout;
   uint64_t tail = opt->coverage < 0.5 ? N : (uint64_t)((1.0 - opt->coverage) * (double)N) + 1;
-  b += par * (32 * tail + 5 * 8 * 65536);           /* tails, their sort, bins */
+  /* tails (12% over M - q each) and their sort scratch; the subsample and
+   * its sort scratch; five tables of the slots */
+  b += par * (36 * tail + 24 * BRACKET_SUB + 5 * 8 * BRACKET_SLOTS);
   if (opt->method == SP_ENGINE_SOBOL) {
     uint64_t G = opt->adaptive_digits ? engine_adaptive_batch(opt->coverage, opt->block)
                                       : N / (opt->replicates ? opt->replicates : 1);

@@ -340,10 +340,9 @@ static void multiselect(double *y, size_t lo, size_t hi, const size_t *t, size_t
  * selection. Communications of the ACM 18(3), 165-172, applied here to
  * many ranks at once. */
 #define BRACKET_MIN 131072u   /* below this, selection is as fast */
-#define BRACKET_SUB 65536u    /* subsample size */
-#define BRACKET_BINS 16384u   /* bins of the middle range (their counters stay in L2) */
-#define BRACKET_SLOTS (BRACKET_BINS + 2u)
 #define BRACKET_SIGMAS 6.0    /* bracket half-width in rank standard deviations */
+/* BRACKET_SUB and BRACKET_BINS: engine_internal.h (the memory estimate
+ * counts their tables) */
 
 /* The slot of v: floor((v - a) scale) + 1 clamped to [0, BRACKET_BINS + 1].
  * On x86-64 the clamps are the SSE2 instructions maxsd and minsd, whose
