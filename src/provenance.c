@@ -100,6 +100,7 @@ void sp_provenance_get(sp_provenance *p)
 #endif
   put(p->build_type, SP_BUILD_TYPE);
   code_flags(p->flags);
+  snprintf(p->cflags, sizeof p->cflags, "%s", SP_BUILD_C_FLAGS[0] ? SP_BUILD_C_FLAGS : "unknown");
   put(p->build_system, SP_BUILD_SYSTEM);
   put(p->gsl_build, GSL_VERSION);
   put(p->gsl_runtime, gsl_version);
@@ -189,6 +190,7 @@ json_t *sp_provenance_json_object(wctx *w)
   set(w, b, "compiler_version", str(w, p.compiler_version));
   set(w, b, "build_type", str(w, p.build_type));
   set(w, b, "flags", str(w, p.flags));
+  set(w, b, "cflags", str(w, p.cflags));
   set(w, b, "system", str(w, p.build_system));
   set(w, o, "build", b);
   json_t *gsl = obj(w), *jan = obj(w);

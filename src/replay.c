@@ -349,6 +349,7 @@ void sp_replay_check_build(const json_t *root, sp_replay_report *rep)
     {"compiler version", {"provenance", "build", "compiler_version", NULL}, p.compiler_version},
     {"build type", {"provenance", "build", "build_type", NULL}, p.build_type},
     {"code generation", {"provenance", "build", "flags", NULL}, p.flags},
+    {"compile flags", {"provenance", "build", "cflags", NULL}, p.cflags},
     {"GSL loaded", {"provenance", "libraries", "gsl", "loaded"}, p.gsl_runtime},
     {"libc", {"provenance", "libraries", "libc", NULL}, p.libc},
     {"machine", {"provenance", "os", "machine", NULL}, p.machine},

@@ -254,6 +254,18 @@ END_TEST
 
 /* A per-lot record: the pooled fit at the top level, the lots under "by";
  * it reads back, and a bad field inside a lot is named by its path. */
+/* The build facts in every record: the compile flags as CMake passed them
+ * (with the reproducibility options CMakeLists.txt sets for every target,
+ * docs/reproducibility.md) beside what the predefined macros show. */
+START_TEST(test_build_provenance)
+{
+  ck_assert_ptr_nonnull(strstr(record_text, "\"cflags\""));
+  ck_assert_ptr_nonnull(strstr(record_text, "-ffp-contract=off -fno-fast-math"));
+  ck_assert(strstr(record_text, "\"flags\": \"optimised") ||
+            strstr(record_text, "\"flags\": \"not optimised"));
+}
+END_TEST
+
 START_TEST(test_grouped_record)
 {
   double x[40];
@@ -303,6 +315,7 @@ static Suite *record_suite(void)
   tcase_add_test(tc, test_write_read_file);
   tcase_add_test(tc, test_bad_fields);
   tcase_add_test(tc, test_grouped_record);
+  tcase_add_test(tc, test_build_provenance);
   suite_add_tcase(s, tc);
   return s;
 }

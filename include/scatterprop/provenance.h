@@ -27,6 +27,9 @@ typedef struct {
    * (optimisation, fast-math, sanitizers, instruction-set extensions):
    * "optimised, no fast-math, x86_64 sse2". */
   char flags[SP_PROVENANCE_TEXT_MAX];
+  /* The library's compile flags themselves (CMake's for the build type,
+   * then the folder's and the target's options), cut at 1023 bytes. */
+  char cflags[1024];
   char build_system[SP_PROVENANCE_TEXT_MAX];     /* system built for: "Linux x86_64" */
   char gsl_build[SP_PROVENANCE_TEXT_MAX];        /* GSL headers compiled against */
   char gsl_runtime[SP_PROVENANCE_TEXT_MAX];      /* GSL library loaded (gsl_version) */
