@@ -255,7 +255,10 @@ uint64_t engine_run_bytes(const sp_engine_options *opt, size_t k, size_t nout,
   uint64_t b = 0;
   b += N * nout * 8;                                 /* one double per sample per output */
   if (opt->keep_samples) b += N * nout * 8;          /* the copy in sample order */
-  if (opt->rank_sensitivity) b += N * k * 8 + N * 52; /* inputs; ranks and sort scratch */
+  if (opt->rank_sensitivity) { /* inputs; ranks and sort scratch (engine_rank.c) */
+    const uint64_t per = 8 * (uint64_t)nout + 32 > 52 ? 8 * (uint64_t)nout + 32 : 52;
+    b += N * k * 8 + N * per;
+  }
   b += (uint64_t)threads * (2 * B * k * 8 + (k + nout) * 16); /* block inputs, scratch */
   b += nblocks * (nout * sizeof(engine_moments) + 1);
   uint64_t par = (uint64_t)threads < nout ? (uint64_t)threads : nout;

@@ -93,11 +93,13 @@ void engine_rank(const double *y, size_t n, double *rank, uint64_t *tmp, uint32_
   }
   radix_sort(k, k2, ix, ix2, n);
   /* ranks 1..n; a run of equal values (compared as doubles, so -0 and +0
-   * tie) gets the average of its ranks */
+   * tie) gets the average of its ranks.  The values are read back from the
+   * sorted keys, in order, not through ix (which would read y at random) */
   size_t i = 0;
   while (i < n) {
     size_t j = i + 1;
-    while (j < n && y[ix[j]] == y[ix[i]]) j++;
+    const double vi = double_of(k[i]);
+    while (j < n && double_of(k[j]) == vi) j++;
     double r = 0.5 * ((double)(i + 1) + (double)j);
     for (size_t t = i; t < j; t++) rank[ix[t]] = r;
     i = j;

@@ -1076,6 +1076,98 @@ START_TEST(test_copula_rank_correlation)
 }
 END_TEST
 
+/* Y1 = a rounded to halves (ties), Y2 = 1 for b > 0, else -0 or +0 by the
+ * sign of a (ties, and zeros of both signs, which tie as doubles), Y3 = a,
+ * Y4 = b (the inputs, kept with the outputs for the reference). */
+static void m_ties(const double *const *in, size_t n, double *const *out, const double *c)
+{
+  (void)c;
+  for (size_t s = 0; s < n; s++) {
+    const double a = in[0][s], b = in[1][s];
+    out[0][s] = 0.5 * nearbyint(2.0 * a);
+    out[1][s] = b > 0.0 ? 1.0 : (a < 0.0 ? -0.0 : 0.0);
+    out[2][s] = a;
+    out[3][s] = b;
+  }
+}
+
+typedef struct {
+  double v;
+  size_t i;
+} val_at;
+
+static int cmp_val_at(const void *pa, const void *pb)
+{
+  const val_at *a = pa, *b = pb;
+  return (a->v > b->v) - (a->v < b->v);
+}
+
+/* Average ranks by a comparison sort (an implementation independent of the
+ * engine's radix sort): equal values (==, so -0 and +0) share the mean of
+ * their ranks (Spearman 1904). */
+static void reference_ranks(const double *y, size_t n, double *rank)
+{
+  val_at *t = malloc(n * sizeof *t);
+  for (size_t i = 0; i < n; i++) t[i] = (val_at){y[i], i};
+  qsort(t, n, sizeof *t, cmp_val_at);
+  for (size_t i = 0; i < n;) {
+    size_t j = i + 1;
+    while (j < n && t[j].v == t[i].v) j++;
+    for (size_t q = i; q < j; q++) rank[t[q].i] = 0.5 * ((double)(i + 1) + (double)j);
+    i = j;
+  }
+  free(t);
+}
+
+static double pearson(const double *a, const double *b, size_t n)
+{
+  double ma = 0.0, mb = 0.0, sab = 0.0, saa = 0.0, sbb = 0.0;
+  for (size_t i = 0; i < n; i++) {
+    ma += a[i];
+    mb += b[i];
+  }
+  ma /= (double)n;
+  mb /= (double)n;
+  for (size_t i = 0; i < n; i++) {
+    sab += (a[i] - ma) * (b[i] - mb);
+    saa += (a[i] - ma) * (a[i] - ma);
+    sbb += (b[i] - mb) * (b[i] - mb);
+  }
+  return sab / sqrt(saa * sbb);
+}
+
+START_TEST(test_rank_sensitivity_ties)
+{
+  /* Spearman's rho with heavy ties (and -0 tying +0) against the reference
+   * ranking above on the kept samples: every output is finite, so the
+   * engine ranks each input once for all outputs. */
+  model_ctx mc = {m_ties, NULL};
+  sp_evaluator ev = evaluator(&mc, 2, 4);
+  sp_engine_input in[2] = {input(&fam_normal, 0, 1, "a"), input(&fam_normal, 0, 1, "b")};
+  const size_t N = 20011;
+  sp_engine_options o = opts(N, 1904);
+  o.rank_sensitivity = 1;
+  o.keep_samples = 1;
+  sp_engine_result r;
+  run_ok(in, 2, &ev, &o, &r);
+  double *rk[4];
+  for (int v = 0; v < 4; v++) {
+    rk[v] = malloc(N * sizeof *rk[v]);
+    reference_ranks(r.samples_kept + v * N, N, rk[v]);
+  }
+  size_t negzero = 0;
+  for (size_t s = 0; s < N; s++) negzero += r.samples_kept[N + s] == 0.0 && signbit(r.samples_kept[N + s]);
+  ck_assert_msg(negzero > 1000, "only %zu samples of -0", negzero);
+  for (int outp = 0; outp < 4; outp++)
+    for (int i = 0; i < 2; i++) {
+      const double want = pearson(rk[2 + i], rk[outp], N);
+      ASSERT_REL(r.rank_corr[outp * 2 + i], want, 1e-12);
+    }
+  for (int v = 0; v < 4; v++) free(rk[v]);
+  sp_engine_result_free(&r);
+}
+END_TEST
+
 START_TEST(test_rank_sensitivity_linear)
 {
   /* Y = X1 + 2 X2, Xi ~ N(0, 1): corr(Xi, Y) = c_i / sqrt(5) and, jointly
@@ -1430,6 +1522,7 @@ static Suite *engine_suite(void)
   tcase_add_test(tc, test_lhs_strata);
   tcase_add_test(tc, test_sobol_converges_faster);
   tcase_add_test(tc, test_copula_rank_correlation);
+  tcase_add_test(tc, test_rank_sensitivity_ties);
   tcase_add_test(tc, test_rank_sensitivity_linear);
   tcase_add_test(tc, test_exceedance);
   tcase_add_test(tc, test_progress_cancel);
