@@ -6,68 +6,13 @@
  * invented data); file hashes are checked with coreutils' sha256sum,
  * independent of the library. */
 #include <jansson.h>
-#include <stdarg.h>
 #include <string.h>
 #include <sys/stat.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include "scatterprop/archive.h"
 #include "sp_test.h"
 
 static char dir[] = "/tmp/sp_archive_XXXXXX";
-static char *out_text, *err_text;
-
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-static int sh(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
-static int sh(const char *fmt, ...)
-{
-  char line[4096], cmd[8192];
-  va_list ap;
-  va_start(ap, fmt);
-  vsnprintf(line, sizeof line, fmt, ap);
-  va_end(ap);
-  snprintf(cmd, sizeof cmd, "cd '%s' && { %s; } >out.txt 2>err.txt </dev/null", dir, line);
-  int st = system(cmd);
-  char p[600];
-  free(out_text);
-  free(err_text);
-  snprintf(p, sizeof p, "%s/out.txt", dir);
-  out_text = slurp(p);
-  snprintf(p, sizeof p, "%s/err.txt", dir);
-  err_text = slurp(p);
-  ck_assert_msg(WIFEXITED(st), "command did not exit normally: %s", line);
-  return WEXITSTATUS(st);
-}
-
-#define SP "'" SP_CLI_PATH "'"
-
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "output lacks '%s':\n%s", (want),           \
-                (text) ? (text) : "(none)")
-
-static const char *path_in(const char *rel)
-{
-  static char p[4][600];
-  static int k;
-  k = (k + 1) % 4;
-  snprintf(p[k], sizeof p[k], "%s/%s", dir, rel);
-  return p[k];
-}
-
 static int exists(const char *rel)
 {
   struct stat st;
@@ -95,28 +40,22 @@ static json_t *load(const char *rel)
 /* Two data files fitted from the top folder, the model one folder down. */
 static void setup(void)
 {
-  ck_assert_ptr_nonnull(mkdtemp(dir));
+  test_dir_make(dir);
   ck_assert_int_eq(sh("mkdir -p src/in src/fits src/model && cp '%s/data/coil_dm.csv' "
                       "'%s/data/shear_modulus.csv' src/in/", SP_SOURCE_DIR, SP_SOURCE_DIR), 0);
   ck_assert_int_eq(sh("cd src && " SP " fit in/coil_dm.csv --column Dm --bootstrap 40 "
                       "--out fits/dm.json"), 0);
   ck_assert_int_eq(sh("cd src && " SP " fit in/shear_modulus.csv --column G --bootstrap 40 "
                       "--out fits/g.json"), 0);
-  FILE *fp = fopen(path_in("src/model/m.spm"), "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs("# archive test model\n"
-        "input Dm [mm]  ~ fit(\"../fits/dm.json\")   # coil\n"
-        "input G  [GPa] ~ fit( \"../fits/g.json\" )\n"
-        "output q [GPa/mm] = G / Dm\n", fp);
-  fclose(fp);
+  write_file(path_in("src/model/m.spm"), "# archive test model\n"
+                                         "input Dm [mm]  ~ fit(\"../fits/dm.json\")   # coil\n"
+                                         "input G  [GPa] ~ fit( \"../fits/g.json\" )\n"
+                                         "output q [GPa/mm] = G / Dm\n");
 }
 
 static void teardown(void)
 {
-  char cmd[256];
-  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-  ck_assert_int_eq(system(cmd), 0);
-  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
+  test_dir_remove(dir);
 }
 
 START_TEST(test_fit_archive_moves)
@@ -283,13 +222,10 @@ START_TEST(test_shared_names)
    * inputs: three inputs, two archived records. */
   ck_assert_int_eq(sh("mkdir -p src/fits/a src/fits/b && cp src/fits/dm.json src/fits/a/x.json"
                       " && cp src/fits/g.json src/fits/b/x.json"), 0);
-  FILE *fp = fopen(path_in("src/model/two.spm"), "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs("input Dm [mm] ~ fit(\"../fits/a/x.json\")\n"
-        "input G [GPa] ~ fit(\"../fits/b/x.json\")\n"
-        "input D2 [mm] ~ fit(\"../fits/a/x.json\")\n"
-        "output q [GPa/mm] = G / (Dm + D2)\n", fp);
-  fclose(fp);
+  write_file(path_in("src/model/two.spm"), "input Dm [mm] ~ fit(\"../fits/a/x.json\")\n"
+                                           "input G [GPa] ~ fit(\"../fits/b/x.json\")\n"
+                                           "input D2 [mm] ~ fit(\"../fits/a/x.json\")\n"
+                                           "output q [GPa/mm] = G / (Dm + D2)\n");
   ck_assert_int_eq(sh("cd src && " SP " propagate model/two.spm --samples 5000 --archive ../A"), 0);
   char *m = slurp(path_in("A/model.spm"));
   ASSERT_HAS(m, "fit(\"fits/x.json\")\ninput G");

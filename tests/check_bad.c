@@ -66,30 +66,12 @@ static char *dupstr(const char *s, size_t n)
   return d;
 }
 
-static char *slurp(const char *path, size_t *len)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  size_t cap = 4096, n = 0;
-  char *s = malloc(cap);
-  for (;;) {
-    if (n + 1 >= cap) s = realloc(s, cap *= 2);
-    size_t got = fread(s + n, 1, cap - n - 1, fp);
-    n += got;
-    if (got == 0) break;
-  }
-  fclose(fp);
-  s[n] = '\0';
-  if (len) *len = n;
-  return s;
-}
-
 /* ---- the manifest ---------------------------------------------------------- */
 
 static void load_manifest(void)
 {
   size_t len;
-  char *text = slurp(BAD_DIR "/MANIFEST", &len);
+  char *text = slurp_len(BAD_DIR "/MANIFEST", &len);
   if (!text) {
     fprintf(stderr, "check_bad: cannot read %s/MANIFEST\n", BAD_DIR);
     exit(EXIT_FAILURE);
@@ -221,7 +203,7 @@ static void copy_tree(const char *from, const char *to)
       copy_tree(a, b);
     } else {
       size_t n;
-      char *data = slurp(a, &n);
+      char *data = slurp_len(a, &n);
       ck_assert_ptr_nonnull(data);
       FILE *fp = fopen(b, "wb");
       ck_assert_ptr_nonnull(fp);
@@ -379,7 +361,7 @@ START_TEST(test_case)
   const char *tv = getenv("SP_BAD_TIMEOUT");
   int timeout = tv && atoi(tv) > 0 ? atoi(tv) : 120;
   int st = run_in(dir, argv, out, err, timeout);
-  char *otext = slurp(out, NULL), *etext = slurp(err, NULL);
+  char *otext = slurp(out), *etext = slurp(err);
 
   ck_assert_msg(st != -1, "case %s (MANIFEST:%ld) did not finish within %d s", c->name, c->line,
                 timeout);
@@ -463,7 +445,7 @@ START_TEST(test_manifest_covers_files)
         if (strlen(m) > 4 && strcmp(m + strlen(m) - 4, ".spm") == 0) {
           char full[8192];
           snprintf(full, sizeof full, "%s/%s", BAD_DIR, m);
-          char *text = slurp(full, NULL);
+          char *text = slurp(full);
           char quoted[4096];
           snprintf(quoted, sizeof quoted, "\"%s\"", base);
           if (text && strstr(text, quoted)) {

@@ -14,11 +14,9 @@
 #include <dirent.h>
 #include <errno.h>
 #include <limits.h>
-#include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
-#include <sys/wait.h>
 #include <unistd.h>
 
 #include "scatterprop/fit.h"
@@ -36,28 +34,6 @@
 #define PWNED2 "/tmp/sp_pwned2"
 
 /* ---- helpers ------------------------------------------------------------- */
-
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-static void write_file(const char *path, const char *text)
-{
-  FILE *fp = fopen(path, "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-}
 
 static void make_tmpdir(char *buf, size_t n)
 {
@@ -100,10 +76,6 @@ static int count_entries(const char *dir)
   closedir(d);
   return n;
 }
-
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "text lacks '%s':\n%s", (want),             \
-                (text) ? (text) : "(none)")
 
 /* A CSV of normal values: nlots lots of sizes[k] values each, lot k with
  * mean 10 + 0.1 k and sd 0.5, under the header "lot,<column> [mm]". */
@@ -885,55 +857,24 @@ END_TEST
 
 /* ---- the commands ------------------------------------------------------------- */
 
-static char out_path[] = "/tmp/sp_fitplot_out_XXXXXX";
-static char err_path[] = "/tmp/sp_fitplot_err_XXXXXX";
-static char *out_text, *err_text;
-
-/* Runs the CLI (argument text through /bin/sh; env is a prefix of
- * variable assignments or ""); returns its exit code, with stdout and
- * stderr in out_text and err_text. */
-static int run(const char *env, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
-static int run(const char *env, const char *fmt, ...)
-{
-  char args[4096], cmd[8192];
-  va_list ap;
-  va_start(ap, fmt);
-  vsnprintf(args, sizeof args, fmt, ap);
-  va_end(ap);
-  snprintf(cmd, sizeof cmd, "%s '%s' %s >'%s' 2>'%s' </dev/null", env, SP_CLI_PATH, args,
-           out_path, err_path);
-  int st = system(cmd);
-  free(out_text);
-  free(err_text);
-  out_text = slurp(out_path);
-  err_text = slurp(err_path);
-  ck_assert_msg(WIFEXITED(st), "command did not exit normally: %s", cmd);
-  return WEXITSTATUS(st);
-}
+/* The folder the commands run in, where their output is captured. */
+static char cli_dir[] = "/tmp/sp_fitplot_cli_XXXXXX";
 
 static void cli_setup(void)
 {
-  int fd = mkstemp(out_path);
-  close(fd);
-  fd = mkstemp(err_path);
-  close(fd);
+  test_dir_make(cli_dir);
   /* The source tree's templates, wherever the build folder is. */
   setenv("SCATTERPROP_PLOTS", PLOTS_DIR, 1);
 }
 
 static void cli_teardown(void)
 {
-  unlink(out_path);
-  unlink(err_path);
-  free(out_text);
-  free(err_text);
-  out_text = err_text = NULL;
-  memcpy(out_path + strlen(out_path) - 6, "XXXXXX", 6);
-  memcpy(err_path + strlen(err_path) - 6, "XXXXXX", 6);
+  test_dir_remove(cli_dir);
 }
 
-/* No gnuplot on the PATH (the program is run by its full path). */
-#define NOGP "PATH=/nonexistent"
+/* The program with no gnuplot on the PATH (it is run by its full path):
+ * sh(NOGP " plot ..."). */
+#define NOGP "PATH=/nonexistent " SP
 
 static const char *const two_lots[] = {"K1", "K2"};
 static const size_t two_sizes[] = {30, 25};
@@ -945,8 +886,8 @@ START_TEST(test_cli_fit_plots_and_plot)
   snprintf(csv, sizeof csv, "%s/w.csv", dir);
   snprintf(rec, sizeof rec, "%s/fit.json", dir);
   make_csv(csv, "wire_d", two_lots, two_sizes, 2, 31);
-  ck_assert_int_eq(run("", "fit '%s' --column wire_d --by lot --families normal,lognormal,"
-                           "weibull --pvalues approximation --out '%s' --plots '%s/a'",
+  ck_assert_int_eq(cli("fit '%s' --column wire_d --by lot --families normal,lognormal,"
+                       "weibull --pvalues approximation --out '%s' --plots '%s/a'",
                        csv, rec, dir),
                    0);
   ASSERT_HAS(out_text, "fit record written to");
@@ -964,7 +905,7 @@ START_TEST(test_cli_fit_plots_and_plot)
 
   /* The same charts from the record alone (rendering was shown above; the
    * runs below leave gnuplot out, for speed). */
-  ck_assert_int_eq(run(NOGP, "plot '%s' --out '%s/b'", rec, dir), 0);
+  ck_assert_int_eq(sh(NOGP " plot '%s' --out '%s/b'", rec, dir), 0);
   ASSERT_HAS(out_text, "SHA-256 matches the record");
   snprintf(want, sizeof want, "charts in %s/b: 10 drawn", dir);
   ASSERT_HAS(out_text, want);
@@ -977,16 +918,16 @@ START_TEST(test_cli_fit_plots_and_plot)
     ck_assert_msg(files_equal(p1, p2), "%s and %s differ", p1, p2);
   }
   /* Existing outputs are refused without --force, replaced with it. */
-  ck_assert_int_eq(run(NOGP, "plot '%s' --out '%s/b'", rec, dir), 6);
+  ck_assert_int_eq(sh(NOGP " plot '%s' --out '%s/b'", rec, dir), 6);
   ASSERT_HAS(err_text, "file exists; refusing to overwrite it");
   ASSERT_HAS(err_text, "--force");
-  ck_assert_int_eq(run(NOGP, "plot '%s' --out '%s/b' --force", rec, dir), 0);
+  ck_assert_int_eq(sh(NOGP " plot '%s' --out '%s/b' --force", rec, dir), 0);
   ck_assert_int_eq(
-      run(NOGP, "fit '%s' --column wire_d --by lot --pvalues none --plots '%s/a'", csv, dir), 6);
+      sh(NOGP " fit '%s' --column wire_d --by lot --pvalues none --plots '%s/a'", csv, dir), 6);
   ASSERT_HAS(err_text, "file exists");
 
   /* Without gnuplot: scripts and data, and one hint line. */
-  ck_assert_int_eq(run(NOGP, "plot '%s' --out '%s/c'", rec, dir), 0);
+  ck_assert_int_eq(sh(NOGP " plot '%s' --out '%s/c'", rec, dir), 0);
   ASSERT_HAS(out_text, "(.gp .dat each, not rendered)");
   ASSERT_HAS(out_text, "hint: gnuplot not found; to render the chart: cd ");
   ASSERT_HAS(out_text, "(and likewise for the other 9 scripts)");
@@ -995,7 +936,7 @@ START_TEST(test_cli_fit_plots_and_plot)
 
   /* --json keeps stdout for the record; the chart list goes to stderr. */
   ck_assert_int_eq(
-      run(NOGP, "fit '%s' --column wire_d --pvalues none --json --plots '%s/d'", csv, dir), 0);
+      sh(NOGP " fit '%s' --column wire_d --pvalues none --json --plots '%s/d'", csv, dir), 0);
   ck_assert_int_eq(out_text[0], '{');
   ASSERT_HAS(err_text, "fit_wire_d_hist");
   rm_tree(dir);
@@ -1009,22 +950,22 @@ START_TEST(test_cli_plot_errors)
   snprintf(csv, sizeof csv, "%s/w.csv", dir);
   snprintf(rec, sizeof rec, "%s/fit.json", dir);
   make_csv(csv, "wire_d", two_lots, two_sizes, 2, 32);
-  ck_assert_int_eq(run("", "fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec), 0);
+  ck_assert_int_eq(cli("fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec), 0);
 
-  ck_assert_int_eq(run("", "plot"), 2);
+  ck_assert_int_eq(cli("plot"), 2);
   ASSERT_HAS(err_text, "no fit record given");
-  ck_assert_int_eq(run("", "plot '%s' --bogus", rec), 2);
+  ck_assert_int_eq(cli("plot '%s' --bogus", rec), 2);
   ASSERT_HAS(err_text, "unknown option '--bogus'");
-  ck_assert_int_eq(run("", "plot --help"), 0);
+  ck_assert_int_eq(cli("plot --help"), 0);
   ASSERT_HAS(out_text, "Usage: scatterprop plot FIT.json");
   ASSERT_HAS(out_text, "CAUTION");
-  ck_assert_int_eq(run("", "--help"), 0);
+  ck_assert_int_eq(cli("--help"), 0);
   ASSERT_HAS(out_text, "plot ");
-  ck_assert_int_eq(run("", "fit --help"), 0);
+  ck_assert_int_eq(cli("fit --help"), 0);
   ASSERT_HAS(out_text, "--plots DIR");
 
   /* Missing record: I/O error, exit 6. */
-  ck_assert_int_eq(run("", "plot '%s/none.json' --out '%s/x'", dir, dir), 6);
+  ck_assert_int_eq(cli("plot '%s/none.json' --out '%s/x'", dir, dir), 6);
   ASSERT_HAS(err_text, "cannot open fit record");
 
   /* A bad field: bad data, exit 3, the field named. */
@@ -1034,14 +975,14 @@ START_TEST(test_cli_plot_errors)
   snprintf(badrec, sizeof badrec, "%s/bad.json", dir);
   write_file(badrec, bad);
   free(bad);
-  ck_assert_int_eq(run("", "plot '%s' --out '%s/x'", badrec, dir), 3);
+  ck_assert_int_eq(cli("plot '%s' --out '%s/x'", badrec, dir), 3);
   ASSERT_HAS(err_text, "bad.json: field 'candidates[0].rejected' must be true or false");
 
   bad = replace_value(text, NULL, "\"rank\": ", "0"); /* rank 0: out of range */
   write_file(badrec, bad);
   free(bad);
   free(text);
-  ck_assert_int_eq(run("", "plot '%s' --out '%s/x'", badrec, dir), 3);
+  ck_assert_int_eq(cli("plot '%s' --out '%s/x'", badrec, dir), 3);
   ASSERT_HAS(err_text, "].rank' must be null or an integer from 1 to");
 
   /* Tampered data: exit 3 with both hashes and the file named. */
@@ -1051,7 +992,7 @@ START_TEST(test_cli_plot_errors)
   p[6] = p[6] == '9' ? '8' : '9';
   write_file(csv, text);
   free(text);
-  ck_assert_int_eq(run("", "plot '%s' --out '%s/x'", rec, dir), 3);
+  ck_assert_int_eq(cli("plot '%s' --out '%s/x'", rec, dir), 3);
   ASSERT_HAS(err_text, "SHA-256");
   ASSERT_HAS(err_text, csv);
   ASSERT_HAS(err_text, "the file is not the one fitted");
@@ -1078,8 +1019,7 @@ START_TEST(test_cli_templates_beside_build)
   struct stat a, b;
   int beside = stat(up, &a) == 0 && stat(SP_SOURCE_DIR, &b) == 0 && a.st_dev == b.st_dev &&
                a.st_ino == b.st_ino;
-  int rc = run(NOGP, "fit '%s' --column wire_d --pvalues none --plots '%s/p'",
-               csv, dir);
+  int rc = sh(NOGP " fit '%s' --column wire_d --pvalues none --plots '%s/p'", csv, dir);
   if (beside) {
     ck_assert_msg(rc == 0, "exit %d: %s", rc, err_text);
     ASSERT_HAS(out_text, "charts in");

@@ -49,28 +49,6 @@ static const sp_family test_weibull = {
 
 /* ---- helpers ------------------------------------------------------------- */
 
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-static void write_file(const char *path, const char *text)
-{
-  FILE *fp = fopen(path, "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-}
-
 static void make_tmpdir(char *buf, size_t n)
 {
   snprintf(buf, n, "/tmp/sp_plot_XXXXXX");
@@ -118,12 +96,6 @@ static void opts(sp_plot_options *o, const char *dir, const char *stem)
   o->stem = stem;
   o->template_dir = PLOTS_DIR;
 }
-
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "text lacks '%s':\n%s", (want),             \
-                (text) ? (text) : "(none)")
-#define ASSERT_LACKS(text, bad)                                                              \
-  ck_assert_msg((text) && !strstr((text), (bad)), "text has '%s':\n%s", (bad), (text))
 
 /* Rows of block `index` of a data file, as numbers: *rows x *cols. */
 static double *read_block(const char *path, int index, size_t *rows, size_t *cols)

@@ -6,69 +6,12 @@
  * The CLI runs end to end (SP_CLI_PATH) on copies of the demo data
  * (data/README.md: invented data). */
 #include <jansson.h>
-#include <stdarg.h>
 #include <string.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include "scatterprop/replay.h"
 #include "sp_test.h"
 
 static char dir[] = "/tmp/sp_replay_XXXXXX";
-static char *out_text, *err_text;
-
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-/* Runs a shell command line in dir; returns its exit code. */
-static int sh(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
-static int sh(const char *fmt, ...)
-{
-  char line[4096], cmd[8192];
-  va_list ap;
-  va_start(ap, fmt);
-  vsnprintf(line, sizeof line, fmt, ap);
-  va_end(ap);
-  snprintf(cmd, sizeof cmd, "cd '%s' && { %s; } >out.txt 2>err.txt </dev/null", dir, line);
-  int st = system(cmd);
-  char p[600];
-  free(out_text);
-  free(err_text);
-  snprintf(p, sizeof p, "%s/out.txt", dir);
-  out_text = slurp(p);
-  snprintf(p, sizeof p, "%s/err.txt", dir);
-  err_text = slurp(p);
-  ck_assert_msg(WIFEXITED(st), "command did not exit normally: %s", line);
-  return WEXITSTATUS(st);
-}
-
-/* Runs the CLI in dir. */
-#define SP "'" SP_CLI_PATH "'"
-
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "output lacks '%s':\n%s", (want),           \
-                (text) ? (text) : "(none)")
-
-static const char *path_in(const char *rel)
-{
-  static char p[4][600];
-  static int k;
-  k = (k + 1) % 4;
-  snprintf(p[k], sizeof p[k], "%s/%s", dir, rel);
-  return p[k];
-}
-
 /* SHA-256 by coreutils' sha256sum, independent of the library's libmd. */
 static void sha256sum(const char *rel, char hex[65])
 {
@@ -84,31 +27,25 @@ static void sha256sum(const char *rel, char hex[65])
  * both records and a stated input, propagated. */
 static void setup(void)
 {
-  ck_assert_ptr_nonnull(mkdtemp(dir));
+  test_dir_make(dir);
   ck_assert_int_eq(sh("mkdir in fits model && cp '%s/data/coil_dm.csv' '%s/data/shear_modulus.csv' in/",
                       SP_SOURCE_DIR, SP_SOURCE_DIR), 0);
   ck_assert_int_eq(sh(SP " fit in/coil_dm.csv --column Dm --bootstrap 40 --out fits/dm.json"), 0);
   ck_assert_int_eq(sh(SP " fit in/shear_modulus.csv --column G --by lot --bootstrap 40 "
                       "--out fits/g.json"), 0);
-  FILE *fp = fopen(path_in("model/m.spm"), "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs("# replay test model\n"
-        "input Dm [mm]  ~ fit(\"../fits/dm.json\")\n"
-        "input G  [GPa] ~ fit(\"../fits/g.json\")\n"
-        "input F  [N]   ~ normal(mean=100, sd=5)\n"
-        "output q [GPa/mm] = G / Dm\n"
-        "output s [N] = 2 * F\n"
-        "limit q < 5 [GPa/mm]\n", fp);
-  fclose(fp);
+  write_file(path_in("model/m.spm"), "# replay test model\n"
+                                     "input Dm [mm]  ~ fit(\"../fits/dm.json\")\n"
+                                     "input G  [GPa] ~ fit(\"../fits/g.json\")\n"
+                                     "input F  [N]   ~ normal(mean=100, sd=5)\n"
+                                     "output q [GPa/mm] = G / Dm\n"
+                                     "output s [N] = 2 * F\n"
+                                     "limit q < 5 [GPa/mm]\n");
   ck_assert_int_eq(sh(SP " propagate model/m.spm --samples 20000 --out run --threads 2"), 0);
 }
 
 static void teardown(void)
 {
-  char cmd[256];
-  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-  ck_assert_int_eq(system(cmd), 0);
-  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
+  test_dir_remove(dir);
 }
 
 /* Edits a record: sets the number at a dotted path (array indices as

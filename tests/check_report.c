@@ -21,33 +21,6 @@
 #define HOSTILE2_ESC "&quot;&gt;&lt;img src=x onerror=alert(1)&gt;"
 #define SHA_A "3f79bb7b435b05321651daefd374cdc681dc06faa65e374e38337b88ca046dea"
 
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "text lacks '%s'", (want))
-#define ASSERT_LACKS(text, bad)                                                              \
-  ck_assert_msg((text) && !strstr((text), (bad)), "text has '%s'", (bad))
-
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-static void write_file(const char *path, const char *text)
-{
-  FILE *fp = fopen(path, "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-}
-
 static void rm_tree(const char *dir)
 {
   DIR *d = opendir(dir);

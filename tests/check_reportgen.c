@@ -6,10 +6,8 @@
  * the scatterprop executable, as a user makes them. */
 #include <dirent.h>
 #include <jansson.h>
-#include <stdarg.h>
 #include <string.h>
 #include <sys/stat.h>
-#include <sys/wait.h>
 #include <unistd.h>
 
 #include <gsl/gsl_cdf.h>
@@ -23,67 +21,6 @@
 #define HOSTILE_OUTPUT "<svg onload=alert(2)>"
 
 static char dir[] = "/tmp/sp_reportgen_XXXXXX";
-static char *out_text, *err_text;
-
-static const char *path_in(const char *name)
-{
-  static char path[4][1024];
-  static int k;
-  k = (k + 1) % 4;
-  snprintf(path[k], sizeof path[k], "%s/%s", dir, name);
-  return path[k];
-}
-
-static char *slurp(const char *path)
-{
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return NULL;
-  fseek(fp, 0, SEEK_END);
-  long n = ftell(fp);
-  fseek(fp, 0, SEEK_SET);
-  char *s = malloc((size_t)n + 1);
-  ck_assert_ptr_nonnull(s);
-  size_t got = fread(s, 1, (size_t)n, fp);
-  s[got] = '\0';
-  fclose(fp);
-  return s;
-}
-
-static void write_file(const char *name, const char *text)
-{
-  FILE *fp = fopen(path_in(name), "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-}
-
-/* Runs the scatterprop executable in dir; returns its exit code and keeps
- * its stdout and stderr in out_text and err_text. */
-static int cli(const char *fmt, ...) __attribute__((format(printf, 1, 2)));
-static int cli(const char *fmt, ...)
-{
-  char args[4096], cmd[8192];
-  va_list ap;
-  va_start(ap, fmt);
-  vsnprintf(args, sizeof args, fmt, ap);
-  va_end(ap);
-  snprintf(cmd, sizeof cmd, "cd '%s' && '%s' %s >out.txt 2>err.txt </dev/null", dir,
-           SP_CLI_PATH, args);
-  int st = system(cmd);
-  free(out_text);
-  free(err_text);
-  out_text = slurp(path_in("out.txt"));
-  err_text = slurp(path_in("err.txt"));
-  ck_assert_msg(WIFEXITED(st), "command did not exit normally: %s", cmd);
-  return WEXITSTATUS(st);
-}
-
-#define ASSERT_HAS(text, want)                                                               \
-  ck_assert_msg((text) && strstr((text), (want)), "text lacks '%s':\n%.300s", (want),       \
-                (text) ? (text) : "(none)")
-#define ASSERT_LACKS(text, bad)                                                              \
-  ck_assert_msg(!strstr((text), (bad)), "text holds '%s'", (bad))
-
 /* The data: 40 readings, the normal(10, 0.2) quantiles at (i + 0.5)/40 in
  * a scrambled order (i * 17 mod 40), in two lots; the header and one lot
  * id are hostile. */
@@ -103,31 +40,25 @@ static void write_data(void)
 
 static void setup(void)
 {
-  ck_assert_ptr_nonnull(mkdtemp(dir));
+  test_dir_make(dir);
   write_data();
   /* The data path is given relative to dir (the folder the fit runs in). */
   ck_assert_int_eq(cli("fit d.csv --column '%s' --by lot --families normal,lognormal "
                        "--out fit.json",
                        HOSTILE_COLUMN),
                    0);
-  write_file("m.spm", "# <b>model</b> & \"quotes\" <script>alert(3)</script>\n"
-                      "input a [mm] ~ fit(\"fit.json\")\n"
-                      "input b [mm] ~ uniform(min=0, max=1)\n"
-                      "output y [mm] = a + 2*b\n"
-                      "limit y < 11.5 [mm]\n");
+  write_file(path_in("m.spm"), "# <b>model</b> & \"quotes\" <script>alert(3)</script>\n"
+                               "input a [mm] ~ fit(\"fit.json\")\n"
+                               "input b [mm] ~ uniform(min=0, max=1)\n"
+                               "output y [mm] = a + 2*b\n"
+                               "limit y < 11.5 [mm]\n");
   ck_assert_int_eq(cli("propagate '%s' --samples 20000 --seed 777 --out run", path_in("m.spm")),
                    0);
 }
 
 static void teardown(void)
 {
-  char cmd[256];
-  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-  ck_assert_int_eq(system(cmd), 0);
-  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
-  free(out_text);
-  free(err_text);
-  out_text = err_text = NULL;
+  test_dir_remove(dir);
 }
 
 /* Options without rendering (the charts' data and scripts are still made;
@@ -297,7 +228,7 @@ START_TEST(test_tampered_data_is_refused)
   ck_assert_ptr_nonnull(p);
   p = strchr(p, '\n') - 1;
   *p = *p == '9' ? '8' : '9';
-  write_file("d.csv", text);
+  write_file(path_in("d.csv"), text);
   free(text);
   ck_assert_int_eq(sp_sha256_file(path_in("d.csv"), after, NULL, NULL), SP_OK);
   ck_assert_str_ne(before, after);
@@ -321,7 +252,7 @@ START_TEST(test_changed_fit_record_and_model_are_refused)
   char rec[SP_SHA256_HEX_LEN], now[SP_SHA256_HEX_LEN];
   ck_assert_int_eq(sp_sha256_file(path_in("fit.json"), rec, NULL, NULL), SP_OK);
   char *text = slurp(path_in("fit.json"));
-  write_file("fit.json", text);
+  write_file(path_in("fit.json"), text);
   FILE *fp = fopen(path_in("fit.json"), "ab");
   fputs("\n", fp);
   fclose(fp);
@@ -333,20 +264,20 @@ START_TEST(test_changed_fit_record_and_model_are_refused)
   ASSERT_HAS(err.msg, "fit record");
   ASSERT_HAS(err.msg, rec);
   ASSERT_HAS(err.msg, now);
-  write_file("fit.json", text);
+  write_file(path_in("fit.json"), text);
   free(text);
   ck_assert_int_eq(report(&o, NULL, &err), SP_OK);
   /* The model changed: a comment added. */
   text = slurp(path_in("m.spm"));
   char *more = malloc(strlen(text) + 16);
   sprintf(more, "%s# edited\n", text);
-  write_file("m.spm", more);
+  write_file(path_in("m.spm"), more);
   free(more);
   o.overwrite = 1;
   ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "model");
   ASSERT_HAS(err.msg, "changed since the run");
-  write_file("m.spm", text);
+  write_file(path_in("m.spm"), text);
   free(text);
 }
 END_TEST
@@ -386,7 +317,7 @@ START_TEST(test_bad_records)
   sp_error_clear(&err);
   ck_assert_int_eq(sp_reportgen_write(path_in("none.json"), &o, NULL, &err), SP_EIO);
   ASSERT_HAS(err.msg, "none.json");
-  write_file("bad.json", "{\"format\": ");
+  write_file(path_in("bad.json"), "{\"format\": ");
   ck_assert_int_eq(sp_reportgen_write(path_in("bad.json"), &o, NULL, &err), SP_EDATA);
   ck_assert_int_eq(sp_reportgen_write(path_in("fit.json"), &o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "scatterprop-fit");
@@ -397,14 +328,14 @@ START_TEST(test_bad_records)
   save_record(r);
   ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "version 2");
-  write_file("run/run.json", orig);
+  write_file(path_in("run/run.json"), orig);
   r = load_record();
   json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
   json_object_set_new(y, "mean", json_string("big"));
   save_record(r);
   ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "'results.outputs[0].mean' must be a number");
-  write_file("run/run.json", orig);
+  write_file(path_in("run/run.json"), orig);
   r = load_record();
   y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
   json_object_del(y, "percentiles");
@@ -412,7 +343,7 @@ START_TEST(test_bad_records)
   ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "'results.outputs[0].percentiles' is missing");
   /* The model text no longer matches its hash. */
-  write_file("run/run.json", orig);
+  write_file(path_in("run/run.json"), orig);
   r = load_record();
   json_t *m = json_object_get(r, "model");
   json_object_set_new(m, "text", json_string("output y [mm] = 1 [mm]\n"));
@@ -420,7 +351,7 @@ START_TEST(test_bad_records)
   ck_assert_int_eq(report(&o, NULL, &err), SP_EDATA);
   ASSERT_HAS(err.msg, "model text");
   /* The original record still makes a report. */
-  write_file("run/run.json", orig);
+  write_file(path_in("run/run.json"), orig);
   free(orig);
   ck_assert_int_eq(report(&o, NULL, &err), SP_OK);
 }
@@ -502,7 +433,7 @@ END_TEST
 
 START_TEST(test_model_without_fits)
 {
-  write_file("s.spm", "input p [N] ~ normal(mean=100, sd=5)\noutput q [N] = 2*p\n");
+  write_file(path_in("s.spm"), "input p [N] ~ normal(mean=100, sd=5)\noutput q [N] = 2*p\n");
   ck_assert_int_eq(cli("propagate s.spm --samples 5000 --seed 3 --out run2"), 0);
   sp_reportgen_options o;
   options(&o, NULL);
@@ -526,7 +457,7 @@ START_TEST(test_command)
   /* Exit codes: 6 for a missing record, 3 for a bad one, 2 for usage. */
   ck_assert_int_eq(cli("report missing.json"), 6);
   ASSERT_HAS(err_text, "missing.json");
-  write_file("bad.json", "[1, 2");
+  write_file(path_in("bad.json"), "[1, 2");
   ck_assert_int_eq(cli("report bad.json"), 3);
   ck_assert_int_eq(cli("report"), 2);
   ck_assert_int_eq(cli("report run/run.json --bogus"), 2);

@@ -4,7 +4,6 @@
 #include <jansson.h>
 #include <string.h>
 #include <sys/stat.h>
-#include <sys/wait.h>
 #include <time.h>
 #include <unistd.h>
 
@@ -16,25 +15,8 @@
 
 static char dir[] = "/tmp/sp_run_XXXXXX";
 
-static void setup(void) { ck_assert_ptr_nonnull(mkdtemp(dir)); }
-static void teardown(void)
-{
-  char cmd[256];
-  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-  ck_assert_int_eq(system(cmd), 0);
-  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
-}
-
-static const char *write_file(const char *name, const char *text)
-{
-  static char path[512];
-  snprintf(path, sizeof path, "%s/%s", dir, name);
-  FILE *fp = fopen(path, "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-  return path;
-}
+static void setup(void) { test_dir_make(dir); }
+static void teardown(void) { test_dir_remove(dir); }
 
 static sp_run *open_ok(const char *path)
 {
@@ -65,10 +47,10 @@ START_TEST(test_sum_of_normals_closed_form)
   /* Closed form: a + b with independent normals is normal(15, 0.5), and
    * P(a + b >= 16) = Q(2) (gsl_cdf_ugaussian_Q). Bounds: 5 standard errors
    * of each estimate at N = 200000. */
-  const char *p = write_file("sum.spm", "input a [mm] ~ normal(mean=10, sd=0.3)\n"
-                                        "input b [mm] ~ normal(mean=5, sd=0.4)\n"
-                                        "output s [mm] = a + b\n"
-                                        "limit s < 16 [mm]\n");
+  const char *p = write_file(path_in("sum.spm"), "input a [mm] ~ normal(mean=10, sd=0.3)\n"
+                                                 "input b [mm] ~ normal(mean=5, sd=0.4)\n"
+                                                 "output s [mm] = a + b\n"
+                                                 "limit s < 16 [mm]\n");
   sp_run *r = open_ok(p);
   sp_run_options o;
   sp_run_options_init(&o);
@@ -92,11 +74,11 @@ START_TEST(test_record_and_threads)
 {
   /* The record is complete JSON, and bit-identical (apart from the thread
    * count it records) for 1 and 2 threads. */
-  const char *p = write_file("lin.spm", "input a [N] ~ weibull(shape=8, scale=120)\n"
-                                        "input b [mm] ~ uniform(1, 2)\n"
-                                        "output m [N.m] = a * b\n"
-                                        "limit m > 0.1 [N.m]\n"
-                                        "correlate a b 0.5\n");
+  const char *p = write_file(path_in("lin.spm"), "input a [N] ~ weibull(shape=8, scale=120)\n"
+                                                 "input b [mm] ~ uniform(1, 2)\n"
+                                                 "output m [N.m] = a * b\n"
+                                                 "limit m > 0.1 [N.m]\n"
+                                                 "correlate a b 0.5\n");
   char *txt[2];
   for (int t = 0; t < 2; t++) {
     sp_run *r = open_ok(p);
@@ -145,7 +127,7 @@ static void write_fit_record(const char *csvname, const char *recname, const cha
   int n = snprintf(csv, sizeof csv, "d [%s]\n", unit);
   const double x[] = {2.01, 1.99, 2.00, 2.02, 1.98, 2.005, 1.995, 2.0, 2.01, 1.99};
   for (size_t i = 0; i < 10; i++) n += snprintf(csv + n, sizeof csv - (size_t)n, "%.4f\n", x[i]);
-  const char *cpath = write_file(csvname, csv);
+  const char *cpath = write_file(path_in(csvname), csv);
   sp_error err;
   sp_error_clear(&err);
   sp_table *t = NULL;
@@ -178,7 +160,8 @@ START_TEST(test_fit_input_unit_conversion)
    * by 1e-3 (SI prefix), so the output's mean is the data's mean / 1000
    * (2.0 mm: the data above average to exactly 2.0). */
   write_fit_record("d.csv", "d.json", "mm");
-  const char *p = write_file("m.spm", "input d [m] ~ fit(\"d.json\")\noutput y [mm] = d\n");
+  const char *p =
+      write_file(path_in("m.spm"), "input d [m] ~ fit(\"d.json\")\noutput y [mm] = d\n");
   sp_run *r = open_ok(p);
   ck_assert_uint_eq(sp_run_fit_count(r), 1);
   const sp_run_fit_source *src = sp_run_fit_at(r, 0);
@@ -214,15 +197,14 @@ static void open_fails(const char *path, sp_status code, long line, const char *
 START_TEST(test_fit_input_errors)
 {
   write_fit_record("load.csv", "load.json", "N");
-  const char *p = write_file("bad.spm", "# a force record for a length\n"
-                                        "input d [mm] ~ fit(\"load.json\")\n"
-                                        "output y [mm] = d\n");
+  const char *p = write_file(path_in("bad.spm"), "# a force record for a length\n"
+                                                 "input d [mm] ~ fit(\"load.json\")\n"
+                                                 "output y [mm] = d\n");
   open_fails(p, SP_EMODEL, 2, "fit record load.json is in N, which cannot be converted to mm");
-  p = write_file("missing.spm", "input d [mm] ~ fit(\"nope.json\")\noutput y [mm] = d\n");
+  p = write_file(path_in("missing.spm"), "input d [mm] ~ fit(\"nope.json\")\noutput y [mm] = d\n");
   open_fails(p, SP_EIO, 1, "input d:");
-  const char *bad = write_file("broken.json", "{\"format\": \"scatterprop-fit\"}");
-  (void)bad;
-  p = write_file("broken.spm", "input d [mm] ~ fit(\"broken.json\")\noutput y [mm] = d\n");
+  write_file(path_in("broken.json"), "{\"format\": \"scatterprop-fit\"}");
+  p = write_file(path_in("broken.spm"), "input d [mm] ~ fit(\"broken.json\")\noutput y [mm] = d\n");
   open_fails(p, SP_EDATA, 1, "input d:");
 }
 END_TEST
@@ -230,10 +212,11 @@ END_TEST
 START_TEST(test_correlation_not_positive_definite)
 {
   /* rho(a,b) = rho(b,c) = 0.9 and rho(a,c) = -0.9 cannot hold together. */
-  const char *p = write_file("pd.spm", "input a [1] ~ normal(0, 1)\ninput b [1] ~ normal(0, 1)\n"
-                                       "input c [1] ~ normal(0, 1)\noutput s [1] = a + b + c\n"
-                                       "correlate a b 0.9\ncorrelate b c 0.9\n"
-                                       "correlate a c -0.9\n");
+  const char *p =
+      write_file(path_in("pd.spm"), "input a [1] ~ normal(0, 1)\ninput b [1] ~ normal(0, 1)\n"
+                                    "input c [1] ~ normal(0, 1)\noutput s [1] = a + b + c\n"
+                                    "correlate a b 0.9\ncorrelate b c 0.9\n"
+                                    "correlate a c -0.9\n");
   sp_run *r = open_ok(p);
   sp_run_options o;
   sp_run_options_init(&o);
@@ -249,7 +232,8 @@ END_TEST
 
 START_TEST(test_tables_atomic_and_refused)
 {
-  const char *p = write_file("t.spm", "input a [mm] ~ uniform(0, 1)\noutput y [mm] = 2 * a\n");
+  const char *p =
+      write_file(path_in("t.spm"), "input a [mm] ~ uniform(0, 1)\noutput y [mm] = 2 * a\n");
   sp_run *r = open_ok(p);
   sp_run_options o;
   sp_run_options_init(&o);
@@ -294,66 +278,56 @@ END_TEST
 
 /* ---- the CLI, end to end ------------------------------------------------- */
 
-static int run_cli(const char *args, char *out, size_t n)
-{
-  char cmd[4096];
-  snprintf(cmd, sizeof cmd, "cd '%s' && '%s' %s > out.txt 2>&1 </dev/null", dir, SP_CLI_PATH, args);
-  int st = system(cmd);
-  char path[600];
-  snprintf(path, sizeof path, "%s/out.txt", dir);
-  FILE *fp = fopen(path, "r");
-  size_t got = fp ? fread(out, 1, n - 1, fp) : 0;
-  out[got] = '\0';
-  if (fp) fclose(fp);
-  return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
-}
+/* The commands below run with 2>&1: their stdout and stderr, together as a
+ * terminal shows them, are in out_text. */
 
 START_TEST(test_cli_propagate)
 {
-  static char out[1 << 16];
-  write_file("ok.spm", "input F [N] ~ normal(mean=100, sd=5)\ninput A [mm^2] ~ uniform(9, 11)\n"
-                       "output s [MPa] = F / A\nlimit s < 12 [MPa]\n");
-  ck_assert_int_eq(run_cli("propagate ok.spm --samples 20000 --out res", out, sizeof out), 0);
-  ck_assert_ptr_nonnull(strstr(out, "s  [MPa]"));
-  ck_assert_ptr_nonnull(strstr(out, "coverage interval"));
-  ck_assert_ptr_nonnull(strstr(out, "s < 12 [MPa]: violated by"));
-  ck_assert_ptr_nonnull(strstr(out, "CAUTION"));
+  write_file(path_in("ok.spm"),
+             "input F [N] ~ normal(mean=100, sd=5)\ninput A [mm^2] ~ uniform(9, 11)\n"
+             "output s [MPa] = F / A\nlimit s < 12 [MPa]\n");
+  ck_assert_int_eq(cli("propagate ok.spm --samples 20000 --out res 2>&1"), 0);
+  ASSERT_HAS(out_text, "s  [MPa]");
+  ASSERT_HAS(out_text, "coverage interval");
+  ASSERT_HAS(out_text, "s < 12 [MPa]: violated by");
+  ASSERT_HAS(out_text, "CAUTION");
   char path[600];
   snprintf(path, sizeof path, "%s/res/run.json", dir);
   struct stat st;
   ck_assert_int_eq(stat(path, &st), 0);
   /* Existing outputs are kept without --force (exit 6), replaced with it. */
-  ck_assert_int_eq(run_cli("propagate ok.spm --samples 20000 --out res", out, sizeof out), 6);
-  ck_assert_ptr_nonnull(strstr(out, "refusing to overwrite"));
-  ck_assert_int_eq(run_cli("propagate ok.spm --samples 20000 --out res --force", out, sizeof out), 0);
+  ck_assert_int_eq(cli("propagate ok.spm --samples 20000 --out res 2>&1"), 6);
+  ASSERT_HAS(out_text, "refusing to overwrite");
+  ck_assert_int_eq(cli("propagate ok.spm --samples 20000 --out res --force 2>&1"), 0);
   /* Same seed, same numbers: two --json runs print identical results. */
-  static char a[1 << 16];
-  ck_assert_int_eq(run_cli("propagate ok.spm --samples 5000 --json --threads 1", a, sizeof a), 0);
-  ck_assert_int_eq(run_cli("propagate ok.spm --samples 5000 --json --threads 2", out, sizeof out), 0);
-  ck_assert_ptr_nonnull(strstr(a, "\"results\""));
-  ck_assert_str_eq(strstr(a, "\"results\""), strstr(out, "\"results\""));
+  ck_assert_int_eq(cli("propagate ok.spm --samples 5000 --json --threads 1 2>&1"), 0);
+  ASSERT_HAS(out_text, "\"results\"");
+  char *a = strdup(out_text);
+  ck_assert_ptr_nonnull(a);
+  ck_assert_int_eq(cli("propagate ok.spm --samples 5000 --json --threads 2 2>&1"), 0);
+  ck_assert_str_eq(strstr(a, "\"results\""), strstr(out_text, "\"results\""));
+  free(a);
   /* The bytecode. */
-  ck_assert_int_eq(run_cli("propagate ok.spm --dump-bytecode", out, sizeof out), 0);
-  ck_assert_ptr_nonnull(strstr(out, "output s"));
+  ck_assert_int_eq(cli("propagate ok.spm --dump-bytecode 2>&1"), 0);
+  ASSERT_HAS(out_text, "output s");
 }
 END_TEST
 
 START_TEST(test_cli_propagate_errors)
 {
-  static char out[1 << 16];
-  write_file("bad.spm", "input F [N] ~ normal(mean=100, sd=5)\noutput s [MPa] = F / Dn\n"
-                        "output t [mm] = F\n");
-  ck_assert_int_eq(run_cli("propagate bad.spm", out, sizeof out), 4);
-  ck_assert_ptr_nonnull(strstr(out, "bad.spm:2:22: unknown name 'Dn'"));
-  ck_assert_ptr_nonnull(strstr(out, "^"));
-  ck_assert_ptr_nonnull(strstr(out, "bad.spm:3:"));  /* every error, not only the first */
-  ck_assert_int_eq(run_cli("propagate nothere.spm", out, sizeof out), 6);
-  ck_assert_int_eq(run_cli("propagate", out, sizeof out), 2);
-  ck_assert_int_eq(run_cli("propagate bad.spm --samples 0", out, sizeof out), 2);
-  ck_assert_int_eq(run_cli("propagate bad.spm --samples 10 --tolerance 2", out, sizeof out), 2);
-  ck_assert_int_eq(run_cli("propagate bad.spm --method quantum", out, sizeof out), 2);
-  ck_assert_int_eq(run_cli("propagate --help", out, sizeof out), 0);
-  ck_assert_ptr_nonnull(strstr(out, "CAUTION"));
+  write_file(path_in("bad.spm"), "input F [N] ~ normal(mean=100, sd=5)\noutput s [MPa] = F / Dn\n"
+                                 "output t [mm] = F\n");
+  ck_assert_int_eq(cli("propagate bad.spm 2>&1"), 4);
+  ASSERT_HAS(out_text, "bad.spm:2:22: unknown name 'Dn'");
+  ASSERT_HAS(out_text, "^");
+  ASSERT_HAS(out_text, "bad.spm:3:"); /* every error, not only the first */
+  ck_assert_int_eq(cli("propagate nothere.spm 2>&1"), 6);
+  ck_assert_int_eq(cli("propagate 2>&1"), 2);
+  ck_assert_int_eq(cli("propagate bad.spm --samples 0 2>&1"), 2);
+  ck_assert_int_eq(cli("propagate bad.spm --samples 10 --tolerance 2 2>&1"), 2);
+  ck_assert_int_eq(cli("propagate bad.spm --method quantum 2>&1"), 2);
+  ck_assert_int_eq(cli("propagate --help 2>&1"), 0);
+  ASSERT_HAS(out_text, "CAUTION");
 }
 END_TEST
 

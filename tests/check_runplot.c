@@ -12,29 +12,8 @@
 
 static char dir[] = "/tmp/sp_runplot_XXXXXX";
 
-static void setup(void) { ck_assert_ptr_nonnull(mkdtemp(dir)); }
-static void teardown(void)
-{
-  char cmd[256];
-  snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-  ck_assert_int_eq(system(cmd), 0);
-  memcpy(dir + strlen(dir) - 6, "XXXXXX", 6);
-}
-
-static const char *path_in(const char *name)
-{
-  static char path[1024];
-  snprintf(path, sizeof path, "%s/%s", dir, name);
-  return path;
-}
-
-static void write_file(const char *name, const char *text)
-{
-  FILE *fp = fopen(path_in(name), "wb");
-  ck_assert_ptr_nonnull(fp);
-  fputs(text, fp);
-  fclose(fp);
-}
+static void setup(void) { test_dir_make(dir); }
+static void teardown(void) { test_dir_remove(dir); }
 
 static int exists(const char *path)
 {
@@ -53,7 +32,7 @@ static const char *const MODEL = "input a [mm] ~ normal(mean=10, sd=1)\n"
 
 static sp_run *run_model(const char *text, uint64_t n, int keep, uint64_t sobol)
 {
-  write_file("m.spm", text);
+  write_file(path_in("m.spm"), text);
   sp_error err;
   sp_error_clear(&err);
   sp_model_diags d;
@@ -380,10 +359,10 @@ static double spearman(const double *x, const double *y, size_t n)
 
 START_TEST(test_subsample)
 {
-  write_file("c.spm", "input a [mm] ~ normal(mean=10, sd=1)\n"
-                      "input b [mm] ~ lognormal(meanlog=0, sdlog=0.5)\n"
-                      "output y [mm] = a + 2*b\n"
-                      "correlate a b 0.6\n");
+  write_file(path_in("c.spm"), "input a [mm] ~ normal(mean=10, sd=1)\n"
+                               "input b [mm] ~ lognormal(meanlog=0, sdlog=0.5)\n"
+                               "output y [mm] = a + 2*b\n"
+                               "correlate a b 0.6\n");
   sp_error err;
   sp_error_clear(&err);
   sp_run *r = NULL;
