@@ -1765,8 +1765,9 @@ END_TEST
 
 START_TEST(test_weibull_mle_large_and_wide)
 {
-  /* n = 1e6 draws of weibull(1.8, 5e4): the fit must be fast (one pass per
-   * Newton step) and land within 5 standard errors of the truth: the
+  /* n = 1e6 draws of weibull(1.8, 5e4): the fit must be fast (one pass over
+   * the data per step of the shape; usually one in all at this size) and
+   * land within 5 standard errors of the truth: the
    * asymptotic standard errors are 0.780 k / sqrt(n) for the shape and
    * 1.053 scale / (k sqrt(n)) for the scale (inverse Fisher information of
    * the Weibull, closed form: var(k) = 6 k^2 / (pi^2 n), var(scale) =
