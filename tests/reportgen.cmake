@@ -23,7 +23,8 @@ if(NOT CMAKE_SCRIPT_MODE_FILE)
   endif()
   # The demo's fits run their bootstrap p-values: about half a minute on two
   # cores, most of this test's time.
-  set_tests_properties(reportgen_chromium PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600)
+  set_tests_properties(reportgen_chromium PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600
+    ENVIRONMENT "SCATTERPROP_PLOTS=${PROJECT_SOURCE_DIR}/plots")
   return()
 endif()
 
