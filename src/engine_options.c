@@ -256,8 +256,9 @@ uint64_t engine_run_bytes(const sp_engine_options *opt, size_t k, size_t nout,
   b += N * nout * 8;                                 /* one double per sample per output */
   if (opt->keep_samples) b += N * nout * 8;          /* the copy in sample order */
   if (opt->rank_sensitivity) { /* inputs; ranks and sort scratch (engine_rank.c) */
-    const uint64_t per = 8 * (uint64_t)nout + 32 > 52 ? 8 * (uint64_t)nout + 32 : 52;
-    b += N * k * 8 + N * per;
+    const uint64_t rt = (uint64_t)engine_rank_threads(threads, k, nout);
+    const uint64_t fin = 8 * (uint64_t)nout + 32 * rt; /* all finite: rt threads */
+    b += N * k * 8 + N * (fin > 52 ? fin : 52);
   }
   b += (uint64_t)threads * (2 * B * k * 8 + (k + nout) * 16); /* block inputs, scratch */
   b += nblocks * (nout * sizeof(engine_moments) + 1);

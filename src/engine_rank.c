@@ -11,6 +11,7 @@
 #include "engine_internal.h"
 
 #include <math.h>
+#include <omp.h>
 #include <stdlib.h>
 
 /* Pearson correlation of two rank vectors of length n (mean (n + 1) / 2). */
@@ -46,9 +47,71 @@ static void shares(const double *rc, size_t k, double *share)
   for (size_t i = 0; i < k; i++) share[i] = sum2 > 0.0 ? rc[i] * rc[i] / sum2 : NAN;
 }
 
+int engine_rank_threads(int threads, size_t k, size_t nout)
+{
+  size_t most = k > nout ? k : nout;
+  if (most > ENGINE_RANK_MAX_THREADS) most = ENGINE_RANK_MAX_THREADS;
+  if (threads < 1) threads = 1;
+  return (size_t)threads < most ? threads : (int)(most ? most : 1);
+}
+
+/* Scratch of one thread: ranks, sort keys and indices. */
+typedef struct {
+  double *rx;
+  uint64_t *tmp;
+  uint32_t *idx;
+} rank_scratch;
+
+static int scratch_alloc(rank_scratch *w, size_t nn)
+{
+  w->rx = malloc(nn * sizeof *w->rx);
+  w->tmp = malloc(2 * nn * sizeof *w->tmp);
+  w->idx = malloc(2 * nn * sizeof *w->idx);
+  return w->rx && w->tmp && w->idx;
+}
+
+static void scratch_free(rank_scratch *w)
+{
+  free(w->rx);
+  free(w->tmp);
+  free(w->idx);
+}
+
+/* Every output finite on every sample: each output ranked once into ry,
+ * then each input ranked once and correlated with every output; the
+ * variables are ranked on up to T threads (each rank is exact, so the
+ * figures do not depend on T). */
+static sp_status rank_all_finite(const double *const *x, size_t k, const double *const *y,
+                                 size_t nout, size_t n, int T, double *ry, double *rc)
+{
+  int failed = 0;
+#pragma omp parallel num_threads(T)
+  {
+    rank_scratch w;
+    const int ok = scratch_alloc(&w, n ? n : 1);
+    if (!ok) {
+#pragma omp atomic write
+      failed = 1;
+    }
+#pragma omp barrier
+    if (!failed) {
+#pragma omp for schedule(dynamic, 1)
+      for (size_t o = 0; o < nout; o++) engine_rank(y[o], n, ry + o * n, w.tmp, w.idx);
+#pragma omp for schedule(dynamic, 1)
+      for (size_t i = 0; i < k; i++) {
+        input_ranks(x[i], NULL, n, NULL, w.rx, w.tmp, w.idx);
+        for (size_t o = 0; o < nout; o++)
+          rc[o * k + i] = n >= 2 ? rank_pearson(w.rx, ry + o * n, n) : NAN;
+      }
+    }
+    scratch_free(&w);
+  }
+  return failed ? SP_ENOMEM : SP_OK;
+}
+
 sp_status engine_rank_sensitivity(const double *const *x, size_t k,
                                   const double *const *y, size_t nout, size_t n,
-                                  double *rc, double *share, sp_error *err)
+                                  int threads, double *rc, double *share, sp_error *err)
 {
   if (n > UINT32_MAX)
     return sp_fail(err, SP_EUSAGE, "rank sensitivity: at most %u samples", UINT32_MAX);
@@ -59,41 +122,43 @@ sp_status engine_rank_sensitivity(const double *const *x, size_t k,
   int all_finite = 1;
   for (size_t o = 0; o < nout && all_finite; o++)
     for (size_t s = 0; s < n && all_finite; s++) all_finite = isfinite(y[o][s]);
-  const size_t nry = all_finite ? (nout ? nout : 1) : 1;
   const size_t nn = n ? n : 1;
-  double *ry = malloc(nry * nn * sizeof *ry);
-  double *rx = malloc(nn * sizeof *rx);
-  double *sub = all_finite ? NULL : malloc(nn * sizeof *sub);
-  uint64_t *tmp = malloc(2 * nn * sizeof *tmp);
-  uint32_t *idx = malloc(2 * nn * sizeof *idx);
-  uint32_t *keep = all_finite ? NULL : malloc(nn * sizeof *keep);
   sp_status st = SP_OK;
-  if (!ry || !rx || (!all_finite && (!sub || !keep)) || !tmp || !idx) {
+  double *ry = NULL, *rx = NULL, *sub = NULL;
+  uint64_t *tmp = NULL;
+  uint32_t *idx = NULL, *keep = NULL;
+  if (all_finite) {
+    ry = malloc((nout ? nout : 1) * nn * sizeof *ry);
+    if (!ry || rank_all_finite(x, k, y, nout, n, engine_rank_threads(threads, k, nout), ry, rc)
+                   != SP_OK)
+      st = sp_fail(err, SP_ENOMEM, "rank sensitivity: cannot allocate %zu ranks", n);
+    goto done;
+  }
+  /* Otherwise each output on its own finite samples, one thread. */
+  ry = malloc(nn * sizeof *ry);
+  rx = malloc(nn * sizeof *rx);
+  sub = malloc(nn * sizeof *sub);
+  tmp = malloc(2 * nn * sizeof *tmp);
+  idx = malloc(2 * nn * sizeof *idx);
+  keep = malloc(nn * sizeof *keep);
+  if (!ry || !rx || !sub || !tmp || !idx || !keep) {
     st = sp_fail(err, SP_ENOMEM, "rank sensitivity: cannot allocate %zu ranks", n);
     goto done;
   }
-  if (all_finite) {
-    for (size_t o = 0; o < nout; o++) engine_rank(y[o], n, ry + o * n, tmp, idx);
+  for (size_t o = 0; o < nout; o++) {
+    size_t m = 0;
+    for (size_t s = 0; s < n; s++)
+      if (isfinite(y[o][s])) keep[m++] = (uint32_t)s;
+    for (size_t s = 0; s < m; s++) sub[s] = y[o][keep[s]];
+    engine_rank(sub, m, ry, tmp, idx);
     for (size_t i = 0; i < k; i++) {
-      input_ranks(x[i], NULL, n, NULL, rx, tmp, idx);
-      for (size_t o = 0; o < nout; o++)
-        rc[o * k + i] = n >= 2 ? rank_pearson(rx, ry + o * n, n) : NAN;
-    }
-  } else {
-    for (size_t o = 0; o < nout; o++) {
-      size_t m = 0;
-      for (size_t s = 0; s < n; s++)
-        if (isfinite(y[o][s])) keep[m++] = (uint32_t)s;
-      for (size_t s = 0; s < m; s++) sub[s] = y[o][keep[s]];
-      engine_rank(sub, m, ry, tmp, idx);
-      for (size_t i = 0; i < k; i++) {
-        input_ranks(x[i], keep, m, sub, rx, tmp, idx);
-        rc[o * k + i] = m >= 2 ? rank_pearson(rx, ry, m) : NAN;
-      }
+      input_ranks(x[i], keep, m, sub, rx, tmp, idx);
+      rc[o * k + i] = m >= 2 ? rank_pearson(rx, ry, m) : NAN;
     }
   }
-  for (size_t o = 0; o < nout; o++) shares(rc + o * k, k, share + o * k);
 done:
+  if (st == SP_OK)
+    for (size_t o = 0; o < nout; o++) shares(rc + o * k, k, share + o * k);
   free(ry);
   free(rx);
   free(sub);

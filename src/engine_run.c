@@ -385,7 +385,7 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
       goto done;
     }
     st = engine_rank_sensitivity((const double *const *)job.xin, k,
-                                 (const double *const *)job.vals, nout, (size_t)samples,
+                                 (const double *const *)job.vals, nout, (size_t)samples, T,
                                  res->rank_corr, res->rank_share, err);
     if (st != SP_OK) goto done;
   }

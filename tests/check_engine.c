@@ -1164,6 +1164,16 @@ START_TEST(test_rank_sensitivity_ties)
       ASSERT_REL(r.rank_corr[outp * 2 + i], want, 1e-12);
     }
   for (int v = 0; v < 4; v++) free(rk[v]);
+  /* the variables are ranked on several threads: the same bits on 1 and 3 */
+  for (int t = 1; t <= 3; t += 2) {
+    sp_engine_options ot = o;
+    ot.threads = t;
+    sp_engine_result rt;
+    run_ok(in, 2, &ev, &ot, &rt);
+    ck_assert(memcmp(rt.rank_corr, r.rank_corr, 8 * sizeof *r.rank_corr) == 0);
+    ck_assert(memcmp(rt.rank_share, r.rank_share, 8 * sizeof *r.rank_share) == 0);
+    sp_engine_result_free(&rt);
+  }
   sp_engine_result_free(&r);
 }
 END_TEST
