@@ -43,10 +43,10 @@
 #include <stdint.h>
 #include <string.h>
 
-#define LN2_HI 0x1.62e42fee00000p-1 /* ln 2 to 32 bits: k LN2_HI is exact */
+#define LN2_HI 0x1.62e42fee00000p-1  /* ln 2 to 32 bits: k LN2_HI is exact */
 #define LN2_LO 0x1.a39ef35793c76p-33 /* ln 2 - LN2_HI (computed to 50 digits) */
 #define INV_LN2 1.4426950408889634
-#define SHIFTER 0x1.8p52             /* adding it rounds to an integer */
+#define SHIFTER 0x1.8p52 /* adding it rounds to an integer */
 #define SQRT_HALF_BITS UINT64_C(0x3fe6a09e667f3bcd)
 #define MANT_MASK UINT64_C(0x000fffffffffffff)
 #define EXP_LIMIT 700.0
@@ -64,10 +64,9 @@ static inline double log_kernel(double x)
   const double f = m - 1.0, s = f / (2.0 + f), z = s * s;
   /* Estrin's scheme: short chains of dependent operations */
   const double z2 = z * z, z4 = z2 * z2, z8 = z4 * z4;
-  const double R =
-      z * (((2.0 / 3 + z * (2.0 / 5)) + z2 * (2.0 / 7 + z * (2.0 / 9)))
-           + z4 * ((2.0 / 11 + z * (2.0 / 13)) + z2 * (2.0 / 15 + z * (2.0 / 17)))
-           + z8 * (2.0 / 19 + z * (2.0 / 21)));
+  const double R = z * (((2.0 / 3 + z * (2.0 / 5)) + z2 * (2.0 / 7 + z * (2.0 / 9))) +
+                        z4 * ((2.0 / 11 + z * (2.0 / 13)) + z2 * (2.0 / 15 + z * (2.0 / 17))) +
+                        z8 * (2.0 / 19 + z * (2.0 / 21)));
   const double h = 0.5 * f * f, ed = (double)e;
   return ed * LN2_HI + (f - (h - (s * (h + R) + ed * LN2_LO)));
 }
@@ -79,10 +78,11 @@ static inline double exp_kernel(double y)
   const double r = (y - kd * LN2_HI) - kd * LN2_LO;
   /* Estrin's scheme, as for the log */
   const double r2 = r * r, r4 = r2 * r2;
-  const double hi = ((1.0 / 40320 + r * (1.0 / 362880)) + r2 * (1.0 / 3628800 + r * (1.0 / 39916800)))
-                    + r4 * (1.0 / 479001600 + r * (1.0 / 6227020800.0));
-  const double lo = ((1.0 / 2 + r * (1.0 / 6)) + r2 * (1.0 / 24 + r * (1.0 / 120)))
-                    + r4 * (1.0 / 720 + r * (1.0 / 5040));
+  const double hi =
+      ((1.0 / 40320 + r * (1.0 / 362880)) + r2 * (1.0 / 3628800 + r * (1.0 / 39916800))) +
+      r4 * (1.0 / 479001600 + r * (1.0 / 6227020800.0));
+  const double lo = ((1.0 / 2 + r * (1.0 / 6)) + r2 * (1.0 / 24 + r * (1.0 / 120))) +
+                    r4 * (1.0 / 720 + r * (1.0 / 5040));
   const double p = 1.0 + (r + r2 * (lo + (r4 * r2) * hi));
   /* the low bits of t hold k (two's complement); 2^k from its exponent */
   uint64_t tb, sb;
