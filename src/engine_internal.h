@@ -110,14 +110,21 @@ size_t engine_compact_finite(double *y, size_t n);
 #define BRACKET_SLOTS (BRACKET_BINS + 2u)
 
 /* Order statistics of y[0..m) (finite, rearranged): the percentiles p[0..np)
- * by Hyndman-Fan 7 into pct, and the JCGM 101 intervals at coverage cov. */
+ * by Hyndman-Fan 7 into pct, and the JCGM 101 intervals at coverage cov.
+ * The bracketing passes (large m) run on `threads` threads (1: this one);
+ * the figures do not depend on the number. */
 sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
-                             double cov, double *pct, sp_engine_output *o,
+                             double cov, double *pct, sp_engine_output *o, int threads,
                              sp_error *err);
 /* Histogram of y[0..m) on [lo, hi] into counts[0..nb) with the outside
  * counts. */
 void engine_histogram(const double *y, size_t m, double lo, double hi, size_t nb,
                       uint64_t *counts, uint64_t *below, uint64_t *above);
+/* The same counted on `threads` threads; SP_ENOMEM (nothing counted) when
+ * their rows cannot be allocated. */
+sp_status engine_histogram_par(const double *y, size_t m, double lo, double hi, size_t nb,
+                               uint64_t *counts, uint64_t *below, uint64_t *above,
+                               int threads);
 /* JCGM 101 7.7: q = pM, rounded half up (engine_interval.c). */
 size_t engine_jcgm_q(size_t m, double p);
 /* Hyndman-Fan 7 interpolation as sp_quantile_sorted: a + g (b - a). */

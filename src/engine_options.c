@@ -262,11 +262,16 @@ uint64_t engine_run_bytes(const sp_engine_options *opt, size_t k, size_t nout,
   }
   b += (uint64_t)threads * (2 * B * k * 8 + (k + nout) * 16); /* block inputs, scratch */
   b += nblocks * (nout * sizeof(engine_moments) + 1);
-  uint64_t par = (uint64_t)threads < nout ? (uint64_t)threads : nout;
   uint64_t tail = opt->coverage < 0.5 ? N : (uint64_t)((1.0 - opt->coverage) * (double)N) + 1;
-  /* tails (12% over M - q each) and their sort scratch; the subsample and
-   * its sort scratch; five tables of the slots */
-  b += par * (36 * tail + 24 * BRACKET_SUB + 5 * 8 * BRACKET_SLOTS);
+  /* Per output summarised at a time: the tails (12% over M - q each) and
+   * their sort scratch, the subsample and its sort scratch, the slot
+   * tables.  With fewer outputs than threads the outputs go one after the
+   * other on all threads: per-chunk slot counts, two sorters' scratch. */
+  const uint64_t fixed = 24 * BRACKET_SUB + 4 * 8 * BRACKET_SLOTS;
+  if (nout < (uint64_t)threads)
+    b += 54 * tail + fixed + (uint64_t)threads * 8 * (BRACKET_SLOTS + opt->hist_bins + 2);
+  else
+    b += (uint64_t)threads * (36 * tail + fixed + 8 * BRACKET_SLOTS);
   if (opt->method == SP_ENGINE_SOBOL) {
     uint64_t G = opt->adaptive_digits ? engine_adaptive_batch(opt->coverage, opt->block)
                                       : N / (opt->replicates ? opt->replicates : 1);

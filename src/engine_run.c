@@ -175,6 +175,31 @@ static double replicate_sem(const double *y, uint64_t n, uint64_t G)
   return sqrt(ss / (dc * (dc - 1.0)));
 }
 
+/* Histogram and order statistics of output o (its values compacted to the
+ * finite ones first when there are others), on `threads` threads. */
+static sp_status summarise_output(const run_job *job, sp_engine_result *res,
+                                  sp_engine_output *outs, const sp_engine_options *opt,
+                                  size_t o, uint64_t samples, size_t np, int threads)
+{
+  sp_engine_output *so = &outs[o];
+  double *y = job->vals[o];
+  /* the moments counted the non-finite values: compact only when any */
+  size_t m = so->nan + so->posinf + so->neginf ? engine_compact_finite(y, (size_t)samples)
+                                               : (size_t)samples;
+  double lo = so->min, hi = so->max;
+  if (opt->hist_range && !isnan(opt->hist_range[2 * o])) {
+    lo = opt->hist_range[2 * o];
+    hi = opt->hist_range[2 * o + 1];
+  }
+  so->hist_lo = lo;
+  so->hist_hi = hi;
+  if (engine_histogram_par(y, m, lo, hi, opt->hist_bins, res->hist + o * opt->hist_bins,
+                           &so->hist_below, &so->hist_above, threads) != SP_OK)
+    return SP_ENOMEM;
+  return engine_order_stats(y, m, res->pct_p, np, opt->coverage, res->pct + o * np, so,
+                            threads, NULL);
+}
+
 /* ---- the run -------------------------------------------------------------- */
 
 sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
@@ -393,11 +418,15 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
     const sp_engine_limit *lim = &opt->limits[l];
     const double *y = job.vals[lim->output];
     uint64_t viol = 0, nf = 0;
+    const int below = lim->direction == SP_ENGINE_BELOW;
+    const double lv = lim->value;
+    /* integer counts: the same whatever the threads */
+#pragma omp parallel for num_threads(T) schedule(static) reduction(+ : viol, nf)
     for (uint64_t s = 0; s < samples; s++) {
       double v = y[s];
       if (!isfinite(v)) continue;
       nf++;
-      viol += lim->direction == SP_ENGINE_BELOW ? (v >= lim->value) : (v <= lim->value);
+      viol += below ? (v >= lv) : (v <= lv);
     }
     sp_engine_exceed *e = &res->exceed[l];
     e->output = lim->output;
@@ -410,28 +439,20 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
                                                          &e->lo, &e->hi);
   }
 
-  /* Order statistics and histograms, one output per thread. */
+  /* Order statistics and histograms: one output per thread when there are
+   * as many outputs as threads, otherwise the outputs one after the other,
+   * each on all threads (the figures are the same either way). */
   int failed_out = -1;
+  if (nout < (size_t)T) {
+    for (size_t o = 0; o < nout && failed_out < 0; o++)
+      if (summarise_output(&job, res, outs, opt, o, samples, np, T) != SP_OK) failed_out = (int)o;
+  } else {
 #pragma omp parallel for num_threads(T) schedule(dynamic, 1)
-  for (size_t o = 0; o < nout; o++) {
-    sp_engine_output *so = &outs[o];
-    double *y = job.vals[o];
-    /* the moments counted the non-finite values: compact only when any */
-    size_t m = so->nan + so->posinf + so->neginf ? engine_compact_finite(y, (size_t)samples)
-                                                 : (size_t)samples;
-    double lo = so->min, hi = so->max;
-    if (opt->hist_range && !isnan(opt->hist_range[2 * o])) {
-      lo = opt->hist_range[2 * o];
-      hi = opt->hist_range[2 * o + 1];
-    }
-    so->hist_lo = lo;
-    so->hist_hi = hi;
-    engine_histogram(y, m, lo, hi, opt->hist_bins, res->hist + o * opt->hist_bins,
-                     &so->hist_below, &so->hist_above);
-    if (engine_order_stats(y, m, res->pct_p, np, opt->coverage, res->pct + o * np, so, NULL)
-        != SP_OK) {
+    for (size_t o = 0; o < nout; o++) {
+      if (summarise_output(&job, res, outs, opt, o, samples, np, 1) != SP_OK) {
 #pragma omp critical
-      if (failed_out < 0 || (int)o < failed_out) failed_out = (int)o;
+        if (failed_out < 0 || (int)o < failed_out) failed_out = (int)o;
+      }
     }
   }
   if (failed_out >= 0)

@@ -30,6 +30,7 @@
 #include "engine_internal.h"
 
 #include <math.h>
+#include <omp.h>
 #include <stdlib.h>
 #include <string.h>
 #if defined(__x86_64__) && defined(__SSE2__)
@@ -318,6 +319,13 @@ static void multiselect(double *y, size_t lo, size_t hi, const size_t *t, size_t
   }
 }
 
+/* The first index of chunk c when [0, m) is cut into C contiguous chunks
+ * whose sizes differ by at most one (chunk_start(m, C, C) = m). */
+static size_t chunk_start(size_t m, size_t C, size_t c)
+{
+  return m / C * c + (c < m % C ? c : m % C);
+}
+
 /* ---- order statistics by bracketing --------------------------------------
  * For large m the order statistics are found without rearranging y: a
  * pseudorandom subsample of BRACKET_SUB values (positions from a fixed
@@ -396,20 +404,26 @@ static double bracket_get(const bracket *br, size_t t)
  * -1 when memory runs out. */
 static int order_stats_bracket(const double *y, size_t m, const double *p, size_t np,
                                size_t qq, size_t tail, int have_sym, size_t s_lo,
-                               size_t s_hi, double *pct, sp_engine_output *o)
+                               size_t s_hi, int threads, double *pct, sp_engine_output *o)
 {
   enum { HIGH = BRACKET_BINS + 1u };
+  /* The passes run over C contiguous chunks of y, one per thread; chunk c
+   * counts into its own row of ccnt, which then becomes chunk c's write
+   * positions, so every chunk writes its own part of each stretch (and
+   * its own spare cell).  Counts are sums and the stretches are sorted
+   * afterwards, so the figures do not depend on C. */
+  const size_t C = threads > 1 ? (size_t)threads : 1;
   int ret = -1;
   double *sub = malloc(BRACKET_SUB * sizeof *sub);
   uint64_t *tmp = malloc(2 * BRACKET_SUB * sizeof *tmp);
   size_t *cnt = calloc(BRACKET_SLOTS, sizeof *cnt);
+  size_t *ccnt = calloc(C * BRACKET_SLOTS, sizeof *ccnt);
   size_t *cum = malloc(BRACKET_SLOTS * sizeof *cum);
   size_t *off = malloc(BRACKET_SLOTS * sizeof *off);
-  size_t *pos = malloc(BRACKET_SLOTS * sizeof *pos);
   size_t *inc = calloc(BRACKET_SLOTS, sizeof *inc);
   double *buf = NULL;
   uint64_t *stmp = NULL;
-  if (!sub || !tmp || !cnt || !cum || !off || !pos || !inc) goto out;
+  if (!sub || !tmp || !cnt || !ccnt || !cum || !off || !inc) goto out;
 
   sp_pcg64 g;
   sp_rng_block_stream(&g, m, 0, 0); /* positions depend on m only */
@@ -425,7 +439,14 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
   if (!(a < b) || !isfinite(scale)) goto out;
 
   /* pass 1: counts */
-  for (size_t i = 0; i < m; i++) cnt[slot_of(y[i], a, scale)]++;
+#pragma omp parallel for num_threads(threads > 1 ? threads : 1) schedule(static, 1)
+  for (size_t ch = 0; ch < C; ch++) {
+    size_t *cc = ccnt + ch * BRACKET_SLOTS;
+    for (size_t i = chunk_start(m, C, ch), end = chunk_start(m, C, ch + 1); i < end; i++)
+      cc[slot_of(y[i], a, scale)]++;
+  }
+  for (size_t ch = 0; ch < C; ch++)
+    for (size_t k = 0; k < BRACKET_SLOTS; k++) cnt[k] += ccnt[ch * BRACKET_SLOTS + k];
   const size_t nlow = cnt[0], nhigh = cnt[HIGH];
   if (nlow < tail || nhigh < tail) goto out;
   size_t c = 0;
@@ -458,21 +479,50 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
       if (cnt[k] > big) big = cnt[k];
     }
   }
-  for (size_t k = 0; k < BRACKET_SLOTS; k++) pos[k] = inc[k] ? off[k] : ncopy; /* spare cell */
+  /* chunk c's write positions: its slot's start plus what the chunks
+   * before it put there; slots not copied go to chunk c's spare cell */
+  for (size_t k = 0; k < BRACKET_SLOTS; k++) {
+    size_t at = off[k];
+    for (size_t ch = 0; ch < C; ch++) {
+      size_t *pc = ccnt + ch * BRACKET_SLOTS + k, n_here = *pc;
+      *pc = inc[k] ? at : ncopy + ch;
+      at += n_here;
+    }
+  }
   ret = -1;
-  buf = malloc((ncopy + 1) * sizeof *buf);
-  stmp = malloc(2 * (big ? big : 1) * sizeof *stmp);
+  /* the stretches are sorted on up to two threads (the two tails are the
+   * big ones), each with its own scratch */
+  const int sorters = threads > 1 ? 2 : 1;
+  buf = malloc((ncopy + C) * sizeof *buf);
+  stmp = malloc((size_t)sorters * 2 * (big ? big : 1) * sizeof *stmp);
   if (!buf || !stmp) goto out;
 
   /* pass 2: copies */
-  for (size_t i = 0; i < m; i++) {
-    const double v = y[i];
-    const size_t k = slot_of(v, a, scale);
-    buf[pos[k]] = v;
-    pos[k] += inc[k];
+#pragma omp parallel for num_threads(threads > 1 ? threads : 1) schedule(static, 1)
+  for (size_t ch = 0; ch < C; ch++) {
+    size_t *pc = ccnt + ch * BRACKET_SLOTS;
+    for (size_t i = chunk_start(m, C, ch), end = chunk_start(m, C, ch + 1); i < end; i++) {
+      const double v = y[i];
+      const size_t k = slot_of(v, a, scale);
+      buf[pc[k]] = v;
+      pc[k] += inc[k];
+    }
   }
-  for (size_t k = 0; k < BRACKET_SLOTS; k++)
-    if (inc[k] && cnt[k] > 1) engine_sort_doubles(buf + off[k], cnt[k], stmp);
+  /* the slots to sort, the two tails first */
+  size_t nsort = 0;
+  size_t *list = malloc(BRACKET_SLOTS * sizeof *list);
+  if (!list) goto out;
+  list[nsort++] = 0;
+  list[nsort++] = HIGH;
+  for (size_t k = 1; k < HIGH; k++)
+    if (inc[k] && cnt[k] > 1) list[nsort++] = k;
+#pragma omp parallel for num_threads(sorters) schedule(dynamic, 1)
+  for (size_t q = 0; q < nsort; q++) {
+    const size_t k = list[q];
+    uint64_t *st = stmp + (size_t)omp_get_thread_num() * 2 * (big ? big : 1);
+    if (cnt[k] > 1) engine_sort_doubles(buf + off[k], cnt[k], st);
+  }
+  free(list);
 
   bracket br = {m, cum, off, buf};
   /* shortest interval: y_(r) = low[r], y_(r+q) from the high tail */
@@ -505,9 +555,9 @@ out:
   free(sub);
   free(tmp);
   free(cnt);
+  free(ccnt);
   free(cum);
   free(off);
-  free(pos);
   free(inc);
   free(buf);
   free(stmp);
@@ -515,7 +565,7 @@ out:
 }
 
 sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
-                             double cov, double *pct, sp_engine_output *o,
+                             double cov, double *pct, sp_engine_output *o, int threads,
                              sp_error *err)
 {
   o->sym_lo = o->sym_hi = o->short_lo = o->short_hi = NAN;
@@ -531,7 +581,7 @@ sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
   size_t s_lo = 0, s_hi = 0;
   int have_sym = sp_engine_symmetric_index(m, cov, &s_lo, &s_hi);
   if (m >= BRACKET_MIN && qq >= 1 && tail >= 1 && tail <= qq) {
-    int r = order_stats_bracket(y, m, p, np, qq, tail, have_sym, s_lo, s_hi, pct, o);
+    int r = order_stats_bracket(y, m, p, np, qq, tail, have_sym, s_lo, s_hi, threads, pct, o);
     if (r < 0) return sp_fail(err, SP_ENOMEM, "cannot allocate the order-statistic scratch");
     if (r > 0) return SP_OK;
   }
@@ -608,6 +658,38 @@ sp_status engine_order_stats(double *y, size_t m, const double *p, size_t np,
 }
 
 /* ---- histogram ------------------------------------------------------------- */
+
+sp_status engine_histogram_par(const double *y, size_t m, double lo, double hi, size_t nb,
+                               uint64_t *counts, uint64_t *below, uint64_t *above,
+                               int threads)
+{
+  const size_t C = threads > 1 ? (size_t)threads : 1;
+  if (C == 1 || nb == 0 || m < C) {
+    engine_histogram(y, m, lo, hi, nb, counts, below, above);
+    return SP_OK;
+  }
+  /* chunk c counts into row c (nb bins, then below and above); the rows
+   * are summed, so the counts do not depend on C */
+  uint64_t *rows = malloc(C * (nb + 2) * sizeof *rows);
+  if (!rows) return SP_ENOMEM;
+#pragma omp parallel for num_threads(threads) schedule(static, 1)
+  for (size_t c = 0; c < C; c++) {
+    const size_t from = chunk_start(m, C, c);
+    uint64_t *r = rows + c * (nb + 2);
+    engine_histogram(y + from, chunk_start(m, C, c + 1) - from, lo, hi, nb, r, r + nb,
+                     r + nb + 1);
+  }
+  memset(counts, 0, nb * sizeof *counts);
+  *below = *above = 0;
+  for (size_t c = 0; c < C; c++) {
+    const uint64_t *r = rows + c * (nb + 2);
+    for (size_t b = 0; b < nb; b++) counts[b] += r[b];
+    *below += r[nb];
+    *above += r[nb + 1];
+  }
+  free(rows);
+  return SP_OK;
+}
 
 void engine_histogram(const double *y, size_t m, double lo, double hi, size_t nb,
                       uint64_t *counts, uint64_t *below, uint64_t *above)
