@@ -222,11 +222,13 @@ int engine_adaptive_stable(const engine_adaptive *a, const double *u_all,
 
 /* Spearman correlations of inputs x[i][0..n) with outputs y[o][0..n),
  * skipping for each output the samples where it is not finite.  rc and share
- * are nout x k.  When every output is finite the variables are ranked on
+ * are nout x k.  all_finite says that every output is finite on every
+ * sample (the moments counted it); then the variables are ranked on
  * engine_rank_threads(threads, k, nout) threads. */
 sp_status engine_rank_sensitivity(const double *const *x, size_t k,
                                   const double *const *y, size_t nout, size_t n,
-                                  int threads, double *rc, double *share, sp_error *err);
+                                  int all_finite, int threads, double *rc, double *share,
+                                  sp_error *err);
 /* Threads the ranking uses: at most the larger of k and nout, and at most
  * ENGINE_RANK_MAX_THREADS (each holds 32 bytes of scratch per sample). */
 #define ENGINE_RANK_MAX_THREADS 4

@@ -30,13 +30,12 @@ static double rank_pearson(const double *a, const double *b, size_t n)
 }
 
 /* The ranks rx of input xi over the m samples listed in keep (copied into
- * sub first), or over all of them when keep is NULL. */
+ * sub first). */
 static void input_ranks(const double *xi, const uint32_t *keep, size_t m, double *sub,
                         double *rx, uint64_t *tmp, uint32_t *idx)
 {
-  if (keep)
-    for (size_t s = 0; s < m; s++) sub[s] = xi[keep[s]];
-  engine_rank(keep ? sub : xi, m, rx, tmp, idx);
+  for (size_t s = 0; s < m; s++) sub[s] = xi[keep[s]];
+  engine_rank(sub, m, rx, tmp, idx);
 }
 
 /* share[i] = rc[i]^2 / sum_j rc[j]^2 for one output's k correlations. */
@@ -99,7 +98,7 @@ static sp_status rank_all_finite(const double *const *x, size_t k, const double 
       for (size_t o = 0; o < nout; o++) engine_rank(y[o], n, ry + o * n, w.tmp, w.idx);
 #pragma omp for schedule(dynamic, 1)
       for (size_t i = 0; i < k; i++) {
-        input_ranks(x[i], NULL, n, NULL, w.rx, w.tmp, w.idx);
+        engine_rank(x[i], n, w.rx, w.tmp, w.idx);
         for (size_t o = 0; o < nout; o++)
           rc[o * k + i] = n >= 2 ? rank_pearson(w.rx, ry + o * n, n) : NAN;
       }
@@ -111,7 +110,8 @@ static sp_status rank_all_finite(const double *const *x, size_t k, const double 
 
 sp_status engine_rank_sensitivity(const double *const *x, size_t k,
                                   const double *const *y, size_t nout, size_t n,
-                                  int threads, double *rc, double *share, sp_error *err)
+                                  int all_finite, int threads, double *rc, double *share,
+                                  sp_error *err)
 {
   if (n > UINT32_MAX)
     return sp_fail(err, SP_EUSAGE, "rank sensitivity: at most %u samples", UINT32_MAX);
@@ -119,9 +119,6 @@ sp_status engine_rank_sensitivity(const double *const *x, size_t k,
    * outputs rank the same samples, so each input is ranked once and
    * correlated with every output's ranks (k + nout sorts instead of
    * nout (k + 1)); the output ranks are kept for that, nout arrays. */
-  int all_finite = 1;
-  for (size_t o = 0; o < nout && all_finite; o++)
-    for (size_t s = 0; s < n && all_finite; s++) all_finite = isfinite(y[o][s]);
   const size_t nn = n ? n : 1;
   sp_status st = SP_OK;
   double *ry = NULL, *rx = NULL, *sub = NULL;

@@ -409,9 +409,12 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
       st = sp_fail(err, SP_ENOMEM, "cannot allocate the rank correlations");
       goto done;
     }
+    int all_finite = 1;
+    for (size_t o = 0; o < nout; o++)
+      if (outs[o].nan + outs[o].posinf + outs[o].neginf) all_finite = 0;
     st = engine_rank_sensitivity((const double *const *)job.xin, k,
-                                 (const double *const *)job.vals, nout, (size_t)samples, T,
-                                 res->rank_corr, res->rank_share, err);
+                                 (const double *const *)job.vals, nout, (size_t)samples,
+                                 all_finite, T, res->rank_corr, res->rank_share, err);
     if (st != SP_OK) goto done;
   }
   for (size_t l = 0; l < opt->nlimits; l++) {

@@ -375,7 +375,6 @@ static inline size_t slot_of(double v, double a, double scale)
 }
 
 typedef struct {
-  size_t m;
   const size_t *cum;        /* cum[s]: values in slots below s */
   const size_t *off;        /* start of slot s's sorted stretch in buf */
   const double *buf;
@@ -524,7 +523,7 @@ static int order_stats_bracket(const double *y, size_t m, const double *p, size_
   }
   free(list);
 
-  bracket br = {m, cum, off, buf};
+  bracket br = {cum, off, buf};
   /* shortest interval: y_(r) = low[r], y_(r+q) from the high tail */
   const double *low = buf, *high = buf + off[HIGH];
   size_t best = 0;
