@@ -413,15 +413,21 @@ static int candidate_fixed(const sp_family *fam, const sp_fit_options *o,
         double v;
         sp_error e;
         sp_error_clear(&e);
-        if (sp_parse_double(o->meta[i].value, '.', &v, &e) == SP_OK) {
-          c->fixed[p] = 1;
-          c->theta[p] = v;
+        if (sp_parse_double(o->meta[i].value, '.', &v, &e) != SP_OK) {
+          snprintf(c->reason, sizeof c->reason,
+                   "metadata line %ld: limit '%s': %.100s (correct the line, or give "
+                   "--fix %s=VALUE)",
+                   o->meta[i].line, fam->param_names[p], e.msg, fam->param_names[p]);
+          return 0;
         }
+        c->fixed[p] = 1;
+        c->theta[p] = v;
       }
       if (!c->fixed[p]) {
         snprintf(c->reason, sizeof c->reason,
                  "limit '%s' not given (use --fix %s=VALUE or a '# %s: VALUE' "
-                 "metadata line)",
+                 "metadata line; for a one-sided truncation give a value far beyond "
+                 "the data)",
                  fam->param_names[p], fam->param_names[p], fam->param_names[p]);
         return 0;
       }
@@ -495,7 +501,7 @@ double sp_fit_criterion(const sp_fit_candidate *c, sp_fit_select s)
 void sp_fit_rank(sp_fit_result *r)
 {
   const sp_fit_options *o = &r->opt;
-  size_t nok = 0, nfree = 0;
+  size_t nok = 0, nfree = 0, nfree_conv = 0, njudged = 0;
   int substitute = 0;
   r->chosen = -1;
   for (size_t i = 0; i < r->ncand; i++) {
@@ -512,8 +518,10 @@ void sp_fit_rank(sp_fit_result *r)
     for (int j = 0; j < SP_FIT_NGOF && c->judged_by < 0; j++)
       if (isfinite(c->gof[order[j]].p)) c->judged_by = order[j];
     if (c->judged_by > SP_FIT_GOF_A2) substitute = 1;
+    if (c->judged_by >= 0) njudged++;
     c->rejected = c->judged_by >= 0 && c->gof[c->judged_by].p < o->alpha;
     if (!c->rejected) nfree++;
+    if (!c->rejected && c->converged) nfree_conv++;
   }
   /* AICc needs n > k + 1.  When no fitted candidate has it (n = 3 with two
    * parameters), every AICc would be an equal infinity and the ranking the
@@ -559,31 +567,53 @@ void sp_fit_rank(sp_fit_result *r)
       }
       r->chosen = (long)i;
       double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
-      snprintf(r->reason, sizeof r->reason,
-               "%s: chosen by request (%s %.1f, rank %zu of %zu%s)", c->family->name,
-               crit, v, c->rank, nok, c->rejected ? ", rejected by A² at the level set" : "");
+      snprintf(r->reason, sizeof r->reason, "%s: chosen by request (%s %.1f, rank %zu of %zu%s%s)",
+               c->family->name, crit, v, c->rank, nok,
+               c->rejected ? ", rejected by A² at the level set" : "",
+               c->converged ? "" : ", not converged");
       return;
     }
     snprintf(r->reason, sizeof r->reason, "requested family %s is not a candidate",
              o->force_family);
     return;
   }
+  /* An estimate whose estimator did not meet its tolerance is chosen
+   * only when every candidate not rejected is in that state. */
   long best = -1;
   for (size_t i = 0; i < r->ncand; i++) {
     const sp_fit_candidate *c = &r->cand[i];
     if (c->status != SP_FIT_OK) continue;
     if (nfree > 0 && c->rejected) continue;
+    if (nfree_conv > 0 && !c->converged) continue;
     if (best < 0 || c->rank < r->cand[best].rank) best = (long)i;
   }
   r->chosen = best;
   const sp_fit_candidate *c = &r->cand[best];
   double v = sel == SP_FIT_SELECT_LOGLIK ? c->loglik : sp_fit_criterion(c, sel);
   const char *by = substitute ? "A² (W² where A² is infinite)" : "A²";
-  if (nfree > 0)
+  if (njudged == 0) {
+    /* --pvalues none, or no statistic had a p-value: nothing was tested,
+     * and the reason must not claim otherwise. */
     snprintf(r->reason, sizeof r->reason,
-             "%s: %s %s (%.1f) of the %zu candidate%s not rejected by %s at %g%%",
-             c->family->name, best_word, crit, v, nfree, nfree == 1 ? "" : "s", by,
-             alpha_pct);
+             "%s: %s %s (%.1f) of the %zu%s candidate%s; no goodness-of-fit p-value was "
+             "computed, so none was tested",
+             c->family->name, best_word, crit, v, nfree_conv > 0 ? nfree_conv : nfree,
+             nfree_conv > 0 && nfree > nfree_conv ? " converged" : "",
+             (nfree_conv > 0 ? nfree_conv : nfree) == 1 ? "" : "s");
+  } else if (nfree_conv > 0) {
+    snprintf(r->reason, sizeof r->reason,
+             "%s: %s %s (%.1f) of the %zu candidate%s not rejected by %s at %g%%", c->family->name,
+             best_word, crit, v, nfree_conv, nfree_conv == 1 ? "" : "s", by, alpha_pct);
+    if (nfree > nfree_conv) {
+      size_t len = strlen(r->reason);
+      snprintf(r->reason + len, sizeof r->reason - len,
+               " and converged (%zu not converged left out)", nfree - nfree_conv);
+    }
+  } else if (nfree > 0)
+    snprintf(r->reason, sizeof r->reason,
+             "%s: %s %s (%.1f) of the %zu candidate%s not rejected by %s at %g%%; "
+             "none of them converged, so treat the estimate with care",
+             c->family->name, best_word, crit, v, nfree, nfree == 1 ? "" : "s", by, alpha_pct);
   else
     snprintf(r->reason, sizeof r->reason,
              "%s: %s %s (%.1f) of the %zu fitted candidate%s; every one is rejected "
@@ -596,12 +626,47 @@ void sp_fit_rank(sp_fit_result *r)
   }
 }
 
+/* The hint for a fixed parameter no candidate has: the registered
+ * families that have it, or else the candidates' parameter names. */
+static sp_status fixed_hint(const sp_family *const *fams, size_t nf, const char *name,
+                            sp_error *err)
+{
+  char list[SP_ERROR_MSG_MAX] = "";
+  size_t len = 0, count = 0;
+  for (size_t i = 0; i < sp_family_count(); i++) {
+    const sp_family *f = sp_family_at(i);
+    if (!(f->flags & SP_FAMILY_FIT) || sp_family_param_index(f, name) < 0) continue;
+    len += (size_t)snprintf(list + len, len < sizeof list ? sizeof list - len : 0, "%s%s",
+                            count++ ? ", " : "", f->name);
+    if (len >= sizeof list) break;
+  }
+  if (count > 0)
+    return sp_error_hint(err, "'%s' is a parameter of %s: add %s to --families", name, list,
+                         count == 1 ? "it" : "one of them");
+  for (size_t j = 0; j < nf; j++)
+    for (size_t p = 0; p < fams[j]->nparam; p++) {
+      const char *pn = fams[j]->param_names[p];
+      int seen = 0;
+      for (size_t q = 0; q < j && !seen; q++)
+        seen = sp_family_param_index(fams[q], pn) >= 0;
+      for (size_t r = 0; r < p && !seen; r++)
+        seen = strcmp(fams[j]->param_names[r], pn) == 0;
+      if (seen || len >= sizeof list) continue;
+      len += (size_t)snprintf(list + len, sizeof list - len, "%s%s", len ? ", " : "", pn);
+    }
+  return sp_error_hint(err, "the candidates' parameters are: %s", list);
+}
+
 sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
                      sp_fit_result *out, sp_error *err)
 {
   memset(out, 0, sizeof *out);
   out->chosen = -1;
-  if (n < 2) return sp_fail(err, SP_EDATA, "fit: need at least 2 values, got %zu", n);
+  if (n < 2) {
+    sp_fail(err, SP_EDATA, "fit: need at least 2 values, got %zu", n);
+    return sp_error_hint(err, "a distribution cannot be fitted to fewer than 2 values; "
+                              "check the column, the lot and the missing cells");
+  }
   for (size_t i = 0; i < n; i++)
     if (!isfinite(x[i]))
       return sp_fail(err, SP_EDATA, "fit: value %zu is not finite", i + 1);
@@ -620,8 +685,18 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
         return sp_error_hint(err, "run 'scatterprop fit --help' for the list of families");
       }
       for (size_t j = 0; j < nf; j++)
-        if (fams[j] == f)
-          return sp_fail(err, SP_EUSAGE, "family '%s' listed twice", f->name);
+        if (fams[j] == f) {
+          sp_fail(err, SP_EUSAGE, "family '%s' listed twice", f->name);
+          return sp_error_hint(err, "name each candidate family once");
+        }
+      if (!(f->flags & SP_FAMILY_FIT)) {
+        sp_fail(err, SP_EUSAGE,
+                "family '%s' cannot be fitted (it is offered for "
+                "propagation only)",
+                f->name);
+        return sp_error_hint(err, "run 'scatterprop fit --help' for the families that "
+                                  "can be fitted");
+      }
       if (nf >= SP_FIT_MAX_FAMILIES)
         return sp_fail(err, SP_EUSAGE, "at most %d candidate families", SP_FIT_MAX_FAMILIES);
       fams[nf++] = f;
@@ -630,6 +705,30 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
     for (size_t i = 0; i < sp_family_count() && nf < SP_FIT_MAX_FAMILIES; i++) {
       const sp_family *f = sp_family_at(i);
       if ((f->flags & SP_FAMILY_FIT) && (f->flags & SP_FAMILY_CANDIDATE)) fams[nf++] = f;
+    }
+  }
+  if (opt->force_family) {
+    /* A family asked for by name is fitted even when the default list
+     * leaves it out (exponential, uniform, ...); with an explicit list it
+     * must be on it. */
+    const sp_family *f = sp_family_find(opt->force_family);
+    if (!f || !(f->flags & SP_FAMILY_FIT)) {
+      sp_fail(err, SP_EUSAGE, "requested family '%s' %s", opt->force_family,
+              f ? "cannot be fitted (it is offered for propagation only)"
+                : "is not a known family");
+      return sp_error_hint(err, "run 'scatterprop fit --help' for the list of families");
+    }
+    int found = 0;
+    for (size_t j = 0; j < nf; j++)
+      found |= fams[j] == f;
+    if (!found && !opt->families && nf < SP_FIT_MAX_FAMILIES) {
+      fams[nf++] = f;
+      found = 1;
+    }
+    if (!found) {
+      sp_fail(err, SP_EUSAGE, "requested family '%s' is not among the candidates",
+              opt->force_family);
+      return sp_error_hint(err, "add %s to --families, or leave --families out", opt->force_family);
     }
   }
   if (nf == 0) return sp_fail(err, SP_EUSAGE, "fit: no candidate families");
@@ -647,16 +746,13 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
         return sp_error_hint(err, "give a positive value, or leave %s free", opt->fixed[i].name);
       }
     }
-    if (!found)
-      return sp_fail(err, SP_EUSAGE, "fixed parameter '%s' belongs to none of the candidate "
-                     "families", opt->fixed[i].name);
-  }
-  if (opt->force_family) {
-    int found = 0;
-    for (size_t j = 0; j < nf; j++) found |= strcmp(fams[j]->name, opt->force_family) == 0;
-    if (!found)
-      return sp_fail(err, SP_EUSAGE, "requested family '%s' is not among the candidates",
-                     opt->force_family);
+    if (!found) {
+      sp_fail(err, SP_EUSAGE,
+              "fixed parameter '%s' belongs to none of the candidate "
+              "families",
+              opt->fixed[i].name);
+      return fixed_hint(fams, nf, opt->fixed[i].name, err);
+    }
   }
 
   out->cand = calloc(nf, sizeof *out->cand);
@@ -825,15 +921,35 @@ static sp_status with_column(const sp_table *t, const char *column, sp_status st
   return SP_EDATA;
 }
 
+/* The hint naming the table's columns of one kind. */
+static sp_status columns_hint(const sp_table *t, sp_column_kind kind, const char *what,
+                              sp_error *err)
+{
+  char list[SP_ERROR_MSG_MAX / 2] = "";
+  size_t len = 0, count = 0;
+  for (size_t i = 0; i < t->ncols && len < sizeof list; i++) {
+    if (t->cols[i].kind != kind) continue;
+    len += (size_t)snprintf(list + len, sizeof list - len, "%s'%s'", count++ ? ", " : "",
+                            t->cols[i].name);
+  }
+  if (count == 0) return sp_error_hint(err, "the file has no %s column", what);
+  return sp_error_hint(err, "the %s column%s: %.400s", what, count == 1 ? " is" : "s are", list);
+}
+
 sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
                        const sp_fit_options *opt, sp_fit_grouped *out, sp_error *err)
 {
   memset(out, 0, sizeof *out);
   out->pooled.chosen = -1;
   const sp_column *c = sp_table_column(t, column);
-  if (!c) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, column);
-  if (c->kind != SP_COLUMN_NUMERIC)
-    return sp_fail(err, SP_EUSAGE, "%s: column '%s' is text, not numbers", t->path, column);
+  if (!c) {
+    sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, column);
+    return columns_hint(t, SP_COLUMN_NUMERIC, "numeric", err);
+  }
+  if (c->kind != SP_COLUMN_NUMERIC) {
+    sp_fail(err, SP_EUSAGE, "%s: column '%s' is text, not numbers", t->path, column);
+    return columns_hint(t, SP_COLUMN_NUMERIC, "numeric", err);
+  }
   for (size_t i = 0; i < c->n; i++)
     if (c->flags[i] & (SP_OBS_CENSORED_LEFT | SP_OBS_CENSORED_RIGHT))
       return sp_fail(err, SP_EDATA, "%s: column '%s' has censored observations (row %zu), "
@@ -845,9 +961,14 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
   }
   if (by) {
     const sp_column *g = sp_table_column(t, by);
-    if (!g) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
-    if (g->kind != SP_COLUMN_TEXT)
-      return sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
+    if (!g) {
+      sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
+      return columns_hint(t, SP_COLUMN_TEXT, "text (lot)", err);
+    }
+    if (g->kind != SP_COLUMN_TEXT) {
+      sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
+      return columns_hint(t, SP_COLUMN_TEXT, "text (lot)", err);
+    }
     return with_column(t, column,
                        sp_fit_run_grouped(c->values, (const char *const *)g->text, c->n, &o,
                                           out, err),

@@ -22,8 +22,9 @@
  * the likelihood's curvature, so locations use h_i = eps^(1/4) * typical_i
  * alone; a threshold below (or above) the data is also kept at most half
  * its distance from the nearest observation so that every trial point
- * stays inside the support.  Each step is made exactly representable by
- * h = (theta + h) - theta.
+ * stays inside the support.  A step that the curvature seen at it shows
+ * to be far from its best size is then changed (sp_fit_fd_adapt below).
+ * Each step is made exactly representable by h = (theta + h) - theta.
  *
  * The matrix is inverted by Cholesky (GSL gsl_linalg_cholesky_decomp1 and
  * _invert); failure of the decomposition means the observed information is
@@ -49,6 +50,73 @@ typedef struct {
 static double hf(const hctx *h, const double *theta)
 {
   return h->obj(h->fam, theta, h->x, h->n, NULL);
+}
+
+static double hf_coord(void *ctx, const double *theta)
+{
+  return hf(ctx, theta);
+}
+
+/* The step rule above assumes that a parameter's magnitude (or the data's
+ * spread, for a location) is the length over which -logL changes
+ * curvature.  That fails at the edges: a shape of 0.3 fitted to data
+ * whose sd is 1e4 gets a step larger than the shape, and the scale of a
+ * Weibull with shape 1e9 varies the likelihood over scale/shape, a
+ * billionth of its magnitude.  So each step is then matched to the
+ * curvature actually seen.  With L the curvature length of a sum of n
+ * terms, L^2 ~ n / f'', and d = f'' h^2 / 2 the second difference, the
+ * truncation error of the second difference is about (h/L)^2/12 = d/(6n)
+ * relative, the rounding error 4 eps |f| / (f'' h^2) = 2 eps |f| / d;
+ * their sum is smallest at d* = sqrt(12 n eps |f|), where the relative
+ * error is 2 sqrt(eps |f| / (3n)) (about 1e-8 for |f|/n of order one).
+ * A step within a factor 10 of that (d within a factor 100) is kept as it
+ * is; one that has to change is brought to d within a factor 2 of d*.  The quadratic model moves
+ * the step at most 64 times per trial, since far from the peak -logL is not quadratic; growth
+ * without a visible difference stops after 8^20 = 1e18 times the first step (a parameter the
+ * likelihood does not depend on), and the loop after 64 trials. */
+double sp_fit_fd_adapt(sp_fit_coord_fn f, void *ctx, double *v, size_t j, double f0, double h,
+                       double hmax, size_t n)
+{
+  const double target = sqrt(12.0 * (double)n * DBL_EPSILON * fmax(fabs(f0), 1.0));
+  const double v0 = v[j];
+  const double hmin = 16.0 * DBL_EPSILON * fmax(fabs(v0), DBL_MIN);
+  int grown = 0;
+  /* the first step is kept if d is within a factor 100 of d*; a step
+   * that had to be changed is taken to within a factor 2 of it */
+  double band = 1e2;
+  if (!(h <= hmax)) {
+    h = hmax;
+    band = 2.0;
+  }
+  for (int it = 0; it < 64; it++, band = 2.0) {
+    if (!(h >= hmin)) return NAN;
+    double hs = (v0 + h) - v0;
+    v[j] = v0 + hs;
+    double fp = f(ctx, v);
+    v[j] = v0 - hs;
+    double fm = f(ctx, v);
+    v[j] = v0;
+    if (!isfinite(fp) || !isfinite(fm)) {
+      h /= 8.0;
+      continue;
+    }
+    double d = 0.5 * (fp + fm) - f0;
+    if (d > 0 && d * band >= target && d <= band * target) return h;
+    if (d > 0) {
+      /* the quadratic model, trusted within a factor 64 per trial (far
+       * from the peak -logL is not quadratic) */
+      double r = sqrt(target / d);
+      double hn = fmin(h * fmin(fmax(r, 1.0 / 64.0), 64.0), hmax);
+      if (hn == h) return h;
+      h = hn;
+      continue;
+    }
+    /* d <= 0: the difference is lost in rounding (or f is not convex
+     * here, which the Cholesky factorisation will report) */
+    if (h >= hmax || grown++ >= 20) return h;
+    h = fmin(8.0 * h, hmax);
+  }
+  return h;
 }
 
 /* Standard error and Wald 95% interval of parameter p: on the log scale
@@ -184,11 +252,31 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
       s = e4 * sd;
       break;
     }
-    double a = th + s;
-    step[j] = a - th;
+    step[j] = s;
   }
 
   double f0 = hf(&h, c->theta);
+  if (isfinite(f0)) {
+    double v[SP_FAMILY_MAX_PARAMS];
+    memcpy(v, c->theta, np * sizeof *v);
+    for (size_t j = 0; j < k; j++) {
+      size_t p = idx[j];
+      double th = c->theta[p], hmax = INFINITY;
+      if (fam->param_kinds[p] == SP_PARAM_POSITIVE)
+        hmax = 0.5 * th;
+      else if (fam->param_kinds[p] == SP_PARAM_BELOW_DATA)
+        hmax = 0.5 * (xmin - th);
+      else if (fam->param_kinds[p] == SP_PARAM_ABOVE_DATA)
+        hmax = 0.5 * (th - xmax);
+      double s = sp_fit_fd_adapt(hf_coord, &h, v, p, f0, step[j], hmax, n);
+      if (!isfinite(s)) {
+        f0 = NAN;
+        break;
+      }
+      double a = th + s;
+      step[j] = a - th;
+    }
+  }
   double H[SP_FAMILY_MAX_PARAMS * SP_FAMILY_MAX_PARAMS];
   double tp[SP_FAMILY_MAX_PARAMS];
   int finite = isfinite(f0);

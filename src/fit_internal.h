@@ -79,6 +79,22 @@ void sp_fit_gof_sorted(const sp_family *fam, const double *theta,
 int sp_fit_gof_approx(sp_fit_candidate *c, const double *sorted, size_t n, double *P,
                       double *Q);
 
+/* A central-difference step matched to the curvature of f along
+ * coordinate j of v (fit_hessian.c): f is evaluated at v +- h (v[j] is
+ * restored on return), and h is changed until the second difference
+ * d = (f(v + h) + f(v - h))/2 - f0 lies within a factor 100 of
+ *   d* = sqrt(12 n eps max(|f0|, 1)),
+ * the value that balances truncation against rounding when f is a sum of
+ * n terms (derivation beside the code).  h is returned unchanged when it
+ * already does (so well-scaled fits keep their digits), shrunk by the
+ * quadratic model or by factors of 8 where f is not finite (the trial
+ * point left the parameter space), grown by 8 (at most to hmax) where
+ * the difference is lost in rounding.  NAN when no finite pair exists
+ * down to a step of a few ulps of v[j]. */
+typedef double (*sp_fit_coord_fn)(void *ctx, const double *v);
+double sp_fit_fd_adapt(sp_fit_coord_fn f, void *ctx, double *v, size_t j, double f0, double h,
+                       double hmax, size_t n);
+
 /* sp_fail(err, SP_ENOMEM, ...) with the module's message. */
 sp_status sp_fit_fail_nomem(sp_error *err);
 

@@ -190,7 +190,7 @@ static double t_typical(const tctx *c, size_t j)
  * balances truncation O(h^2) against rounding O(eps/h)) and Hessian
  * (central, step eps^(1/4) * typ: balances O(h^2) against O(eps/h^2)).
  * Steps are made exactly representable as (t + h) - t. */
-static int fd_grad_hess(const tctx *c, const double *t, double f0, double *g,
+static int fd_grad_hess(const tctx *c, const double *t, double f0, const double *typs, double *g,
                         double *H)
 {
   size_t k = c->k;
@@ -199,7 +199,7 @@ static int fd_grad_hess(const tctx *c, const double *t, double f0, double *g,
   double fp[SP_FAMILY_MAX_PARAMS], fm[SP_FAMILY_MAX_PARAMS];
   const double e3 = cbrt(DBL_EPSILON), e4 = sqrt(sqrt(DBL_EPSILON));
   for (size_t j = 0; j < k; j++) {
-    double typ = fmax(fabs(t[j]), t_typical(c, j));
+    double typ = typs[j];
     double a = t[j] + e3 * typ;
     h3[j] = a - t[j];
     double b = t[j] + e4 * typ;
@@ -241,15 +241,35 @@ static int fd_grad_hess(const tctx *c, const double *t, double f0, double *g,
   return 1;
 }
 
-/* Newton polish; returns 1 if the decrement criterion was met. */
+static double f_coord(void *ctx, const double *t)
+{
+  double v = f_t(ctx, t);
+  return v >= FIT_PENALTY ? INFINITY : v;
+}
+
+/* Newton polish; returns 1 if the decrement criterion was met.  The
+ * difference steps start from the typical magnitudes (t_typical) and are
+ * matched once, at the simplex's best point, to the curvature seen there
+ * (sp_fit_fd_adapt): a location of 1e8 with a spread of 1e-2, or the log
+ * of a scale whose likelihood varies over a billionth of it (a
+ * log-logistic of shape 1e9), would otherwise get steps far wider than
+ * the likelihood's peak. */
 static int newton_polish(tctx *c, double *t, double *f, size_t *iters)
 {
   size_t k = c->k;
   double g[SP_FAMILY_MAX_PARAMS], H[SP_FAMILY_MAX_PARAMS * SP_FAMILY_MAX_PARAMS];
   double d[SP_FAMILY_MAX_PARAMS], tn[SP_FAMILY_MAX_PARAMS];
+  double typ[SP_FAMILY_MAX_PARAMS];
+  const double e4 = sqrt(sqrt(DBL_EPSILON));
+  memcpy(tn, t, k * sizeof *t);
+  for (size_t j = 0; j < k; j++) {
+    typ[j] = fmax(fabs(t[j]), t_typical(c, j));
+    double h = sp_fit_fd_adapt(f_coord, c, tn, j, *f, e4 * typ[j], INFINITY, c->n);
+    if (isfinite(h)) typ[j] = h / e4;
+  }
   for (int it = 0; it < FIT_NEWTON_MAX; it++) {
     (*iters)++;
-    if (!fd_grad_hess(c, t, *f, g, H)) return 0;
+    if (!fd_grad_hess(c, t, *f, typ, g, H)) return 0;
     gsl_matrix_view Hm = gsl_matrix_view_array(H, k, k);
     gsl_vector_view gv = gsl_vector_view_array(g, k);
     gsl_vector_view dv = gsl_vector_view_array(d, k);

@@ -263,7 +263,8 @@ sp_status sp_fit_weibull3(const sp_family *fam, const double *x, size_t n,
   info->converged = mi.converged;
   info->iterations += mi.iterations;
   snprintf(info->note, sizeof info->note,
-           "no interior maximum of the likelihood (shape near or below 1): maximum product "
-           "of spacings, Cheng & Amin 1983%s%.100s", mi.note[0] ? "; " : "", mi.note);
+           "no interior maximum of the likelihood (it grows without bound as the location "
+           "approaches min(x)): maximum product of spacings, Cheng & Amin 1983%s%.100s",
+           mi.note[0] ? "; " : "", mi.note);
   return SP_OK;
 }

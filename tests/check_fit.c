@@ -413,6 +413,7 @@ static void synth(sp_fit_candidate *c, const sp_family *f, double loglik, size_t
   c->aicc = c->aic + 2.0 * k * (k + 1.0) / ((double)n - k - 1.0);
   c->bic = k * log((double)n) - 2.0 * loglik;
   c->gof[SP_FIT_GOF_A2].p = pa2;
+  c->converged = 1;
 }
 
 /* The default choice is the lowest AICc among candidates not rejected by
@@ -466,6 +467,53 @@ START_TEST(test_rank_choice)
   sp_fit_rank(&r);
   ck_assert_int_eq(c[0].rank, 0);
   ck_assert_int_eq(r.chosen, 1);
+}
+END_TEST
+
+/* An estimate whose estimator did not converge is passed over while a
+ * converged candidate not rejected exists, and the reason counts it; when
+ * none converged the best not rejected is chosen and the reason warns.
+ * Without any p-value the reason does not claim a test.  AICc numbers as
+ * in test_rank_choice: loglik -10, k = 2, n = 20 gives 24.706. */
+START_TEST(test_rank_converged)
+{
+  sp_fit_candidate c[3];
+  synth(&c[0], &tnorm, -8.0, 2, 20, 0.50); /* best AICc, not converged */
+  c[0].converged = 0;
+  synth(&c[1], &tnorm_cf, -10.0, 2, 20, 0.30);
+  synth(&c[2], &tnorm_s, -11.0, 2, 20, 0.01); /* rejected */
+  sp_fit_result r;
+  memset(&r, 0, sizeof r);
+  sp_fit_options_init(&r.opt);
+  r.cand = c;
+  r.ncand = 3;
+  r.n = 20;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(c[0].rank, 1);
+  ck_assert_int_eq(r.chosen, 1);
+  ck_assert_str_eq(r.reason, "tnorm_cf: lowest AICc (24.7) of the 1 candidate not rejected by "
+                             "A² at 5% and converged (1 not converged left out)");
+  c[1].converged = 0;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 0);
+  ck_assert_msg(strstr(r.reason, "; none of them converged, so treat the estimate with care"), "%s",
+                r.reason);
+  r.opt.force_family = "tnorm";
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 0);
+  ck_assert_msg(strstr(r.reason, "chosen by request (AICc 20.7, rank 1 of 3, not converged)"), "%s",
+                r.reason);
+  /* No p-values at all (--pvalues none): ranked, nothing rejected, and
+   * the reason says that nothing was tested. */
+  r.opt.force_family = NULL;
+  c[1].converged = 1;
+  for (int i = 0; i < 3; i++)
+    for (int j = 0; j < SP_FIT_NGOF; j++)
+      c[i].gof[j].p = NAN;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 1);
+  ck_assert_str_eq(r.reason, "tnorm_cf: lowest AICc (24.7) of the 2 converged candidates; no "
+                             "goodness-of-fit p-value was computed, so none was tested");
 }
 END_TEST
 
@@ -573,6 +621,189 @@ START_TEST(test_nist_pidigits_normal)
   ck_assert_int_eq(g.pooled.chosen, 0);
   sp_fit_grouped_clear(&g);
   sp_table_free(t);
+}
+END_TEST
+
+/* A published Weibull maximum-likelihood example with its data: the 23
+ * ball-bearing endurances of Lieblein, J. & Zelen, M. (1956), J. Research
+ * NBS 57(5), 273-316, as analysed in Lawless, J.F. (2003). Statistical
+ * Models and Methods for Lifetime Data, 2nd ed., Wiley (tests/data/
+ * ball_bearings.csv).  Published estimates (from memory, to the digits
+ * printed there): Weibull shape 2.102, scale 81.88; lognormal on ln x:
+ * 4.150, 0.522.  They were reproduced with scipy 1.10.1
+ * weibull_min.fit(x, floc=0) = (2.1020600632481763, 0, 81.87831609909497)
+ * before use; scipy's Nelder-Mead stops within 1e-6 of the root, so ours
+ * is compared with it at 1e-5 and with the printed digits at half a unit
+ * of their last place.  The lognormal MLE is closed form: mean and root
+ * mean square deviation of ln x, computed with numpy 1.24 as
+ * 4.150454493893831 and 0.5216493340456834. */
+START_TEST(test_published_weibull_ball_bearings)
+{
+  sp_ingest_options io;
+  sp_ingest_options_init(&io);
+  sp_table *t = NULL;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_table_read(SP_TEST_DATA_DIR "/ball_bearings.csv", &io, &t, &e) == SP_OK, "%s",
+                e.msg);
+  const char *fams[2] = {"weibull", "lognormal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 2;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_grouped g;
+  ck_assert_msg(sp_fit_table(t, "revolutions", NULL, &o, &g, &e) == SP_OK, "%s", e.msg);
+  ck_assert_int_eq(g.pooled.n, 23);
+  const sp_fit_candidate *w = &g.pooled.cand[0], *l = &g.pooled.cand[1];
+  ck_assert(w->converged && w->cov_available);
+  ASSERT_ABS(w->theta[0], 2.102, 5e-4);
+  ASSERT_ABS(w->theta[1], 81.88, 5e-3);
+  ASSERT_REL(w->theta[0], 2.1020600632481763, 1e-5);
+  ASSERT_REL(w->theta[1], 81.87831609909497, 1e-5);
+  /* log-likelihood: scipy 1.10.1 sum(weibull_min.logpdf(x, 2.10206..,
+   * 0, 81.8783..)) = -113.6912909323327 */
+  ASSERT_REL(w->loglik, -113.6912909323327, 1e-10);
+  ASSERT_ABS(l->theta[0], 4.150, 5e-4);
+  ASSERT_ABS(l->theta[1], 0.522, 5e-4);
+  ASSERT_REL(l->theta[0], 4.150454493893831, 1e-14);
+  ASSERT_REL(l->theta[1], 0.5216493340456834, 1e-14);
+  sp_fit_grouped_clear(&g);
+  sp_table_free(t);
+}
+END_TEST
+
+/* The observed information of the 2-parameter Weibull in closed form
+ * (z = x/scale, l = ln z; -d2 logL):
+ *   kk: n/k^2 + sum z^k l^2
+ *   ss: (k (k + 1) sum z^k - n k) / s^2
+ *   ks: (n - sum z^k - k sum z^k l) / s
+ * A shape of 0.3 with a scale of 1000 gives data whose sd (about 4e4) is
+ * far larger than the shape; the finite-difference steps once took the
+ * sd as the shape's typical size, stepped below zero and reported no
+ * covariance.  The analytic inverse must be matched to the accuracy of a
+ * central second difference: about 1e-7 relative for the shape, but the
+ * likelihood in the scale is far from quadratic over the step that the
+ * curvature suggests (its higher derivatives come from the few largest
+ * values), measured 3.4e-6 here; 2e-5 allows for that, a thousand times
+ * below the sampling error of a standard error from 400 values. */
+START_TEST(test_covariance_wide_data)
+{
+  enum { N = 400 };
+  double x[N];
+  const sp_family *wf = sp_family_find("weibull");
+  const double truth[2] = {0.3, 1000.0};
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 4242, 0, 0);
+  wf->sample(truth, &g, x, N);
+  const char *fams[1] = {"weibull"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run(x, N, &o, &r, &e) == SP_OK, "%s", e.msg);
+  const sp_fit_candidate *c = &r.cand[0];
+  ck_assert_msg(c->cov_available, "%s", c->cov_note);
+  double k = c->theta[0], s = c->theta[1], s0 = 0, s1 = 0, s2 = 0;
+  for (int i = 0; i < N; i++) {
+    double z = x[i] / s, lz = log(z), zk = pow(z, k);
+    s0 += zk;
+    s1 += zk * lz;
+    s2 += zk * lz * lz;
+  }
+  double hkk = N / (k * k) + s2;
+  double hss = (k * (k + 1.0) * s0 - N * k) / (s * s);
+  double hks = (N - s0 - k * s1) / s;
+  double det = hkk * hss - hks * hks;
+  ASSERT_REL(c->cov[0][0], hss / det, 2e-5);
+  ASSERT_REL(c->cov[1][1], hkk / det, 2e-5);
+  ASSERT_REL(c->cov[0][1], -hks / det, 2e-5);
+  sp_fit_result_clear(&r);
+}
+END_TEST
+
+/* Data far from the origin: 1e8 + logistic noise of scale 0.005 (a
+ * relative spread of 1e-10).  The general minimiser's Newton polish once
+ * took the location's magnitude as its difference step, a million scales
+ * wide, and reported "not converged".  Shifted by 1e8 (exactly: x - 1e8
+ * is exact for x in [5e7, 2e8]) the data give the same fit; the offset
+ * costs the location about an ulp of 1e8 (1.5e-8, 3e-6 scales). */
+START_TEST(test_offset_data)
+{
+  enum { N = 200 };
+  double x[N], y[N];
+  const sp_family *lf = sp_family_find("logistic");
+  const double truth[2] = {1e8, 0.005};
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 4343, 0, 0);
+  lf->sample(truth, &g, x, N);
+  for (int i = 0; i < N; i++)
+    y[i] = x[i] - 1e8;
+  const char *fams[1] = {"logistic"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result rx, ry;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run(x, N, &o, &rx, &e) == SP_OK, "%s", e.msg);
+  ck_assert_msg(sp_fit_run(y, N, &o, &ry, &e) == SP_OK, "%s", e.msg);
+  const sp_fit_candidate *a = &rx.cand[0], *b = &ry.cand[0];
+  ck_assert_msg(a->converged, "%s", a->reason);
+  ck_assert_msg(b->converged, "%s", b->reason);
+  ck_assert_msg(a->cov_available, "%s", a->cov_note);
+  ASSERT_ABS(a->theta[0] - 1e8, b->theta[0], 1e-4 * b->theta[1]);
+  ASSERT_REL(a->theta[1], b->theta[1], 1e-4);
+  ASSERT_REL(a->se[0], b->se[0], 1e-3);
+  ASSERT_REL(a->se[1], b->se[1], 1e-3);
+  sp_fit_result_clear(&rx);
+  sp_fit_result_clear(&ry);
+}
+END_TEST
+
+/* --family names a family to choose whatever its rank: one outside the
+ * default candidates is added to them (only when no list was given);
+ * with a list, one not on it is a usage error with a hint, as is one
+ * that cannot be fitted. */
+START_TEST(test_force_family_added)
+{
+  double x[40];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 4444, 0, 0);
+  for (int i = 0; i < 40; i++)
+    x[i] = 5.0 + sp_rng_normal(&g);
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  o.force_family = "uniform";
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run(x, 40, &o, &r, &e) == SP_OK, "%s", e.msg);
+  ck_assert_int_ge(r.chosen, 0);
+  ck_assert_str_eq(r.cand[r.chosen].family->name, "uniform");
+  ck_assert_int_eq(r.chosen, (long)r.ncand - 1);
+  sp_fit_result_clear(&r);
+  const char *fams[1] = {"normal"};
+  o.families = fams;
+  o.nfamilies = 1;
+  ck_assert_int_eq(sp_fit_run(x, 40, &o, &r, &e), SP_EUSAGE);
+  ck_assert_str_eq(e.msg, "requested family 'uniform' is not among the candidates");
+  ck_assert_str_eq(e.hint, "add uniform to --families, or leave --families out");
+  o.families = NULL;
+  o.force_family = "beta";
+  ck_assert_int_eq(sp_fit_run(x, 40, &o, &r, &e), SP_EUSAGE);
+  ck_assert(strstr(e.msg, "cannot be fitted") != NULL);
+  o.force_family = NULL;
+  ck_assert_int_eq(sp_fit_options_fix(&o, "upper", 9.0, &e), SP_OK);
+  ck_assert_int_eq(sp_fit_run(x, 40, &o, &r, &e), SP_EUSAGE);
+  ck_assert_str_eq(e.hint, "'upper' is a parameter of truncnormal: add it to --families");
 }
 END_TEST
 
@@ -989,6 +1220,10 @@ static Suite *fit_suite(void)
   tc = tcase_create("families");
   tcase_set_timeout(tc, 120);
   tcase_add_test(tc, test_nist_pidigits_normal);
+  tcase_add_test(tc, test_published_weibull_ball_bearings);
+  tcase_add_test(tc, test_covariance_wide_data);
+  tcase_add_test(tc, test_offset_data);
+  tcase_add_test(tc, test_force_family_added);
   tcase_add_test(tc, test_fixed_counts);
   tcase_add_test(tc, test_weibull3_fixed_location);
   tcase_add_test(tc, test_weibull3_mps);
@@ -1001,6 +1236,7 @@ static Suite *fit_suite(void)
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
   tcase_add_test(tc, test_rank_aicc_undefined);
+  tcase_add_test(tc, test_rank_converged);
   tcase_add_test(tc, test_option_parsing);
   suite_add_tcase(s, tc);
   return s;

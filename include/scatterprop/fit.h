@@ -25,7 +25,7 @@
  * Every p-value carries the name of the method that produced it.
  *
  * Ranking: by AICc (or AIC, BIC, log-likelihood); the default choice is
- * the best candidate not rejected by A^2 at level alpha. */
+ * the best converged candidate not rejected by A^2 at level alpha. */
 #ifndef SP_FIT_H
 #define SP_FIT_H
 
@@ -219,8 +219,9 @@ sp_status sp_fit_mle(const sp_family *fam, const double *x, size_t n,
  * closed form for normal, lognormal and exponential fitted by their family
  * solver (fit_hessian.c), otherwise (and for MPS, the spacings objective)
  * central finite differences of -logL in the natural parameters with step
- * h_i = DBL_EPSILON^(1/4) * max(|theta_i|, typical_i) (see fit_hessian.c
- * for the derivation), inverted by Cholesky.  Fills c->se, c->cov,
+ * h_i = DBL_EPSILON^(1/4) * max(|theta_i|, typical_i), changed where the
+ * curvature seen at that step shows it far too wide or narrow (see
+ * fit_hessian.c for the derivation), inverted by Cholesky.  Fills c->se, c->cov,
  * c->cov_available, c->cov_note and the 95% intervals from c->theta,
  * c->fixed, c->family.  SP_ENOMEM only; an indefinite Hessian is a
  * field (cov_available = 0). */
@@ -244,8 +245,9 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
  * candidate not rejected by A^2 at level r->opt.alpha (W^2, then D, for a
  * candidate whose A^2 has no p-value; the best overall, said so, when
  * every candidate is rejected; a candidate without any p-value is never
- * rejected).  sp_fit_run calls this; it is public so a caller may change
- * the criterion and choose again. */
+ * rejected) whose estimator converged (one that did not is chosen only
+ * when no candidate not rejected converged, and the reason says so).  sp_fit_run calls this; it is
+ * public so a caller may change the criterion and choose again. */
 void sp_fit_rank(sp_fit_result *r);
 
 /* The criterion value of c under s (loglik is negated so lower is better

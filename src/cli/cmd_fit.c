@@ -18,7 +18,7 @@ void cli_fit_help(FILE *out)
 {
   fprintf(out,
           "Usage: scatterprop fit FILE.csv --column NAME [--families LIST] [--by LOT]\n"
-          "                       [--select CRIT] [--fix PARAM=VALUE]... [--choose FAMILY]\n"
+          "                       [--select CRIT] [--fix PARAM=VALUE]... [--family FAMILY]\n"
           "                       [--pvalues MODE] [--bootstrap B] [--seed S] [--threads K]\n"
           "                       [--alpha A] [--out FIT.json] [--plots DIR] [--force] [--json]\n"
           "                       [--archive DIR]\n"
@@ -26,7 +26,10 @@ void cli_fit_help(FILE *out)
           "Fits each candidate family to the column by maximum likelihood, tests the fit\n"
           "(Anderson-Darling A², Kolmogorov-Smirnov D, Cramér-von Mises W²), ranks the\n"
           "candidates by an information criterion and chooses the best one that A² does\n"
-          "not reject.\n"
+          "not reject and whose estimator converged.  The table gives per candidate the\n"
+          "free parameters k, log-likelihood, AICc, BIC, the three statistics with their\n"
+          "p-values (a letter names the method of each), a verdict, and below them the\n"
+          "parameters with standard errors; then notes, the chosen family and why.\n"
           "\n"
           "Options:\n"
           "  --column NAME     the numeric column to fit (required)\n"
@@ -37,7 +40,8 @@ void cli_fit_help(FILE *out)
           "  --fix P=V         hold parameter P at V in every family that has it\n"
           "                    (repeatable); limits such as lower/upper may also come\n"
           "                    from a '# lower: V' metadata line\n"
-          "  --choose FAMILY   choose this family whatever its rank\n"
+          "  --family FAMILY   choose this family whatever its rank (fitted even if\n"
+          "                    not a default candidate); --choose is the same\n"
           "  --pvalues MODE    auto (published approximation where one exists, else\n"
           "                    bootstrap; default), bootstrap, approximation or none\n"
           "  --bootstrap B     bootstrap replicates, each refitted (default 1000)\n"
@@ -69,11 +73,11 @@ void cli_fit_help(FILE *out)
       fprintf(out, "%s%s", p ? ", " : "", f->param_names[p]);
     fprintf(out, ")%s\n", (f->flags & SP_FAMILY_CANDIDATE) ? "  default" : "");
   }
-  fprintf(out,
-          "\n"
-          "Exit codes: 0 ok, 2 usage, 3 bad input data, 5 no family could be fitted,\n"
-          "6 I/O error.\n"
-          "\n");
+  fprintf(out, "\n"
+               "Exit codes: 0 ok, 2 usage, 3 bad input data (also: every family skipped\n"
+               "as unable to describe the data), 5 no family fitted because of a numerical\n"
+               "failure, 6 I/O error.\n"
+               "\n");
   cli_print_caution(out);
 }
 
@@ -114,6 +118,18 @@ static void put_num(FILE *out, int width, double v)
   else fprintf(out, " %*s", width, "-");
 }
 
+/* A goodness-of-fit statistic in 7 columns: 4 significant digits, "inf"
+ * for an observation where the fitted F is 0 or 1. */
+static void put_stat(FILE *out, double v)
+{
+  if (isinf(v))
+    fprintf(out, " %7s", "inf");
+  else if (isfinite(v))
+    fprintf(out, " %7.4g", v);
+  else
+    fprintf(out, " %7s", "-");
+}
+
 static void put_params(FILE *out, const sp_fit_candidate *c)
 {
   for (size_t p = 0; p < c->nparam; p++) {
@@ -132,10 +148,8 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
     int len = (int)strlen(r->cand[i].family->name);
     if (len > fw) fw = len;
   }
-  /* Verdicts first, for the column width ("²" is two bytes, one column). */
   char (*verdict)[64] = calloc(r->ncand ? r->ncand : 1, sizeof *verdict);
   if (!verdict) return;
-  int vw = 7;
   for (size_t i = 0; i < r->ncand; i++) {
     const sp_fit_candidate *c = &r->cand[i];
     if (c->status != SP_FIT_OK) continue;
@@ -147,11 +161,12 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
     else snprintf(verdict[i], sizeof verdict[i], "ok");
     if (!c->converged)
       strncat(verdict[i], ", not converged", sizeof verdict[i] - strlen(verdict[i]) - 1);
-    int len = (int)strlen(verdict[i]) - (strstr(verdict[i], "²") ? 1 : 0);
-    if (len > vw) vw = len;
   }
-  fprintf(out, "  %4s  %-*s %10s %10s %8s %8s %8s  %-*s %s\n", "rank", fw, "family", "AICc",
-          "BIC", "A² p", "D p", "W² p", vw, "verdict", "parameters (± se)");
+  /* Two lines per fitted candidate: the numbers, then its parameters with
+   * their standard errors under the family's name.  "A²" and "W²" take
+   * one column each but three bytes, hence the wider fields. */
+  fprintf(out, "  %4s  %-*s %2s %10s %10s %10s %8s %7s %7s %7s %8s %7s  %s\n", "rank", fw, "family",
+          "k", "logL", "AICc", "BIC", "A²", "p", "D", "p", "W²", "p", "verdict");
   /* In rank order, then the unranked (skipped, failed) in candidate order. */
   for (size_t pass = 0; pass < 2; pass++) {
     for (size_t want = 1; want <= (pass == 0 ? r->ncand : 1); want++) {
@@ -164,22 +179,41 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
                   sp_fit_status_name(c->status), c->reason);
           continue;
         }
-        fprintf(out, "  %4zu  %-*s", c->rank, fw, c->family->name);
+        fprintf(out, "  %4zu  %-*s %2zu", c->rank, fw, c->family->name, c->k);
+        put_num(out, 10, c->loglik);
         put_num(out, 10, c->aicc);
         put_num(out, 10, c->bic);
-        for (int j = 0; j < SP_FIT_NGOF; j++) put_p(out, &l, &c->gof[j]);
-        int pad = vw + (strstr(verdict[i], "²") ? 1 : 0);
-        fprintf(out, "  %-*s ", pad, verdict[i]);
+        for (int j = 0; j < SP_FIT_NGOF; j++) {
+          put_stat(out, c->gof[j].stat);
+          put_p(out, &l, &c->gof[j]);
+        }
+        fprintf(out, "  %s\n", verdict[i]);
+        fprintf(out, "  %4s  ", "");
         put_params(out, c);
         fputc('\n', out);
       }
     }
   }
   free(verdict);
+  /* What the table cannot say in a column: estimator notes (a search
+   * limit, a fallback) and why a standard error is missing, for every
+   * fitted candidate but the chosen one (its notes follow below). */
+  int notes = 0;
+  for (size_t i = 0; i < r->ncand; i++) {
+    const sp_fit_candidate *c = &r->cand[i];
+    if (c->status != SP_FIT_OK || (long)i == r->chosen) continue;
+    int cov = !c->cov_available && c->k > 0;
+    if (!c->reason[0] && !cov) continue;
+    if (!notes++) fprintf(out, "\nnotes:\n");
+    fprintf(out, "  %s:", c->family->name);
+    if (c->reason[0]) fprintf(out, " %s%s", c->reason, cov ? ";" : "");
+    if (cov) fprintf(out, " %s", c->cov_note);
+    fputc('\n', out);
+  }
   if (r->chosen >= 0) {
     const sp_fit_candidate *c = &r->cand[r->chosen];
-    fprintf(out, "\nChosen: %s (%s), method %s\n", c->family->name, c->family->title,
-            sp_fit_method_name(c->method));
+    fprintf(out, "\nChosen: %s (%s), method %s%s\n", c->family->name, c->family->title,
+            sp_fit_method_name(c->method), c->converged ? "" : ", not converged");
     fprintf(out, "  why: %s\n", r->reason);
     for (size_t p = 0; p < c->nparam; p++) {
       fprintf(out, "  %-12s %.10g", c->family->param_names[p], c->theta[p]);
@@ -197,6 +231,54 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
   if (l.n > 0) {
     fprintf(out, "\np-values:\n");
     for (size_t i = 0; i < l.n; i++) fprintf(out, "  %c  %s\n", (char)('a' + i), l.text[i]);
+  }
+}
+
+/* With --by: one line per lot and the pooled line, each with the pooled
+ * choice fitted to that lot, so that lot-to-lot differences in its
+ * parameters show side by side. */
+static void print_lots(FILE *out, const sp_fit_grouped *g, const char *by)
+{
+  const sp_fit_result *pr = &g->pooled;
+  if (pr->chosen < 0 || g->ngroups == 0) return;
+  const sp_family *fam = pr->cand[pr->chosen].family;
+  int lw = (int)strlen(by) > 6 ? (int)strlen(by) : 6;
+  for (size_t i = 0; i < g->ngroups; i++) {
+    int len = (int)strlen(g->groups[i].label);
+    if (len > lw) lw = len;
+  }
+  fprintf(out, "\nLots at a glance: %s (the pooled choice) fitted to each %s\n", fam->name, by);
+  /* "A² p": five bytes in four columns */
+  fprintf(out, "  %-*s %6s  %-13s %9s  %s\n", lw, by, "n", "own choice", "A² p",
+          "parameters (± se)");
+  for (size_t i = 0; i <= g->ngroups; i++) {
+    const sp_fit_result *r = i < g->ngroups ? &g->groups[i].fit : pr;
+    const char *label = i < g->ngroups ? g->groups[i].label : "pooled";
+    fprintf(out, "  %-*s %6zu  ", lw, label, r->n);
+    if (i < g->ngroups && g->groups[i].status != SP_OK) {
+      fprintf(out, "not fitted: %s\n", g->groups[i].message);
+      continue;
+    }
+    fprintf(out, "%-13s", r->chosen >= 0 ? r->cand[r->chosen].family->name : "-");
+    const sp_fit_candidate *c = NULL;
+    for (size_t j = 0; j < r->ncand; j++)
+      if (r->cand[j].family == fam) c = &r->cand[j];
+    if (!c || c->status != SP_FIT_OK) {
+      fprintf(out, " %8s  %s\n", "-", c ? c->reason : "not a candidate");
+      continue;
+    }
+    const sp_fit_gof *a = &c->gof[SP_FIT_GOF_A2];
+    if (!isfinite(a->p))
+      fprintf(out, " %8s", "-");
+    else if (a->p < 0.001)
+      fprintf(out, " %8s", "<0.001");
+    else if (a->bound)
+      fprintf(out, " %c%7.3f", a->bound < 0 ? '<' : '>', a->p);
+    else
+      fprintf(out, " %8.3f", a->p);
+    fprintf(out, "  ");
+    put_params(out, c);
+    fprintf(out, "%s\n", c->converged ? "" : " (not converged)");
   }
 }
 
@@ -273,7 +355,8 @@ int cli_fit_run(int argc, char **argv)
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--fix", &v, &rc)) != 0) {
       if (m > 0 && sp_fit_options_fix_parse(&o, v, &err) != SP_OK)
         rc = cli_usage("fit", "--fix: %s", err.msg);
-    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--choose", &v, &rc)) != 0) {
+    } else if ((m = cli_opt_value("fit", argc, argv, &i, "--family", &v, &rc)) != 0 ||
+               (m = cli_opt_value("fit", argc, argv, &i, "--choose", &v, &rc)) != 0) {
       if (m > 0) o.force_family = v;
     } else if ((m = cli_opt_value("fit", argc, argv, &i, "--bootstrap", &v, &rc)) != 0) {
       if (m > 0 && cli_parse_u64("fit", "--bootstrap", v, &u, &rc)) {
@@ -363,7 +446,8 @@ int cli_fit_run(int argc, char **argv)
    * refuses it): nothing is written, and the exit code says why. */
   if (outpath && g.pooled.chosen >= 0 &&
       sp_record_write_text(outpath, text, force, &err) != SP_OK) {
-    if (err.code == SP_EIO && !force) sp_error_hint(&err, "use --force to replace it");
+    if (err.code == SP_EIO && !err.hint[0])
+      sp_error_hint(&err, "check that the folder of %s exists and is writable", outpath);
     rc = cli_report(&err);
     goto done;
   }
@@ -402,6 +486,7 @@ int cli_fit_run(int argc, char **argv)
       print_fit(stdout, &g.groups[i].fit, title);
     }
     print_fit(stdout, &g.pooled, by ? "pooled" : col->name);
+    if (by) print_lots(stdout, &g, by);
     if (outpath && g.pooled.chosen >= 0) printf("\nfit record written to %s\n", outpath);
     if (plotdir) {
       printf("\n");
@@ -412,11 +497,17 @@ int cli_fit_run(int argc, char **argv)
     cli_print_caution(stdout);
   }
   if (g.pooled.chosen < 0) {
+    /* Every family skipped (the data lie outside their supports, are all
+     * equal, ...) is a data problem; a family that failed numerically
+     * makes it a numerical one. */
+    int failed = 0;
+    for (size_t i = 0; i < g.pooled.ncand; i++)
+      failed |= g.pooled.cand[i].status == SP_FIT_FAILED;
     fprintf(stderr, "scatterprop: error: %s: column %s: no family chosen: %s\n",
             t->path, col->name, g.pooled.reason);
     fprintf(stderr, "  hint: the table gives each family's reason%s%s\n",
             outpath ? "; nothing was written to " : "", outpath ? outpath : "");
-    rc = CLI_NUMERIC;
+    rc = failed ? CLI_NUMERIC : CLI_DATA;
   }
 done:
   sp_fitplot_charts_free(&charts);

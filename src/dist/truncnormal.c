@@ -556,6 +556,11 @@ static sp_status start_impl(const double *x, size_t n, const int *fixed,
 {
   if (!sp_dist_is_fixed(fixed, LOWER)) t[LOWER] = -INFINITY;
   if (!sp_dist_is_fixed(fixed, UPPER)) t[UPPER] = INFINITY;
+  /* Limits in the wrong order are the caller's mistake, said before the
+   * data are blamed for lying outside them. */
+  if (!(t[LOWER] < t[UPPER]))
+    return sp_fail(err, SP_EUSAGE, "truncnormal: upper must be > lower, got lower %g, upper %g",
+                   t[LOWER], t[UPPER]);
   sp_dist_summary s;
   sp_dist_summarise(x, n, &s);
   sp_status st = sp_dist_need_data("truncnormal", &s, 1, err);
