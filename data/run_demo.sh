@@ -22,11 +22,11 @@ step "4. Assembly line: load at assembled length (data/assembly_load.csv)"
 step "5. Fit the wire diameter, lot by lot and pooled"
 "$SP" fit "$DATA/wire_d.csv" --column wire_d --by lot --out "$OUT/fits/wire_d.json" \
   --plots "$OUT/plots" --force
-step "6. Fit the coil diameter, the shear modulus (by lot) and the assembly load"
+step "6. Fit the coil diameter, the shear modulus (by lot) and the assembly load (by station)"
 "$SP" fit "$DATA/coil_dm.csv" --column Dm --out "$OUT/fits/coil_dm.json" --force
 "$SP" fit "$DATA/shear_modulus.csv" --column G --by lot --out "$OUT/fits/shear_modulus.json" --force
-"$SP" fit "$DATA/assembly_load.csv" --column load --out "$OUT/fits/assembly_load.json" \
-  --plots "$OUT/plots" --force
+"$SP" fit "$DATA/assembly_load.csv" --column load --by station \
+  --out "$OUT/fits/assembly_load.json" --plots "$OUT/plots" --force
 
 step "7. Propagate the measured scatter through the spring model (data/spring.spm)"
 cp "$DATA/spring.spm" "$OUT/spring.spm"
