@@ -254,11 +254,11 @@ static void print_lots(FILE *out, const sp_fit_grouped *g, const char *by)
   for (size_t i = 0; i <= g->ngroups; i++) {
     const sp_fit_result *r = i < g->ngroups ? &g->groups[i].fit : pr;
     const char *label = i < g->ngroups ? g->groups[i].label : "pooled";
-    fprintf(out, "  %-*s %6zu  ", lw, label, r->n);
     if (i < g->ngroups && g->groups[i].status != SP_OK) {
-      fprintf(out, "not fitted: %s\n", g->groups[i].message);
+      fprintf(out, "  %-*s %6s  not fitted: %s\n", lw, label, "-", g->groups[i].message);
       continue;
     }
+    fprintf(out, "  %-*s %6zu  ", lw, label, r->n);
     fprintf(out, "%-13s", r->chosen >= 0 ? r->cand[r->chosen].family->name : "-");
     const sp_fit_candidate *c = NULL;
     for (size_t j = 0; j < r->ncand; j++)
