@@ -590,6 +590,71 @@ int sp_plot_gnuplot_found(const sp_plot_options *opt, char *buf, size_t n)
   return sp_spawn_find_program(name ? name : "gnuplot", buf, n);
 }
 
+sp_status sp_plot_check(const sp_plot_options *opt, sp_error *err)
+{
+  if (!opt || !opt->outdir || !*opt->outdir)
+    return sp_fail(err, SP_EUSAGE, "charts: no output folder given");
+  char tdir[SP_PLOT_PATH_MAX];
+  sp_status st = sp_plot_template_dir(opt->template_dir, tdir, sizeof tdir, err);
+  if (st) return st;
+  /* The folder that must take a new entry: outdir itself, or, when it does
+   * not exist yet, the folder it would be made in. */
+  const char *dir = opt->outdir;
+  char parent[SP_PLOT_PATH_MAX];
+  struct stat sb;
+  if (stat(dir, &sb) == 0) {
+    if (!S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s: not a folder; charts need a folder", dir);
+      return sp_error_hint(err, "name a folder for the charts (it is made if missing)");
+    }
+  } else if (errno == ENOENT || errno == ENOTDIR) {
+    int w = snprintf(parent, sizeof parent, "%s", dir);
+    if (w < 0 || (size_t)w >= sizeof parent)
+      return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", dir);
+    size_t len = (size_t)w;
+    while (len > 1 && parent[len - 1] == '/')
+      parent[--len] = '\0';
+    char *slash = strrchr(parent, '/');
+    if (!slash)
+      snprintf(parent, sizeof parent, ".");
+    else if (slash == parent)
+      parent[1] = '\0';
+    else
+      *slash = '\0';
+    if (stat(parent, &sb) != 0) {
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder: %s does not exist", dir, parent);
+      return sp_error_hint(err, "the chart folder is made one level deep; create %s first", parent);
+    }
+    if (!S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder: %s is not a folder", dir, parent);
+      return sp_error_hint(err, "name a folder for the charts (it is made if missing)");
+    }
+    dir = parent;
+  } else {
+    return sp_fail(err, SP_EIO, "%s: cannot use it as the chart folder: %s", dir, strerror(errno));
+  }
+  /* Whether an entry can be made there is known only by making one (the
+   * permission bits do not tell for root, read-only mounts, /proc): a
+   * staging folder of the kind each chart uses, removed at once. */
+  char probe[SP_PLOT_PATH_MAX];
+  int w = snprintf(probe, sizeof probe, "%s/.sp-check.sp-%s", dir,
+                   "XX"
+                   "XX"
+                   "XX"); /* mkdtemp template */
+  if (w < 0 || (size_t)w >= sizeof probe)
+    return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", dir);
+  if (!mkdtemp(probe)) {
+    if (dir == parent)
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder in %s: %s", opt->outdir, dir,
+              strerror(errno));
+    else
+      sp_fail(err, SP_EIO, "%s: cannot write charts there: %s", dir, strerror(errno));
+    return sp_error_hint(err, "choose a folder you can write in");
+  }
+  rmdir(probe);
+  return SP_OK;
+}
+
 /* A folder name as a shell word for a hint the user may paste: left bare
  * when it is plainly safe, else single-quoted; control characters shown
  * as '?'. */

@@ -5,6 +5,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "engine_internal.h"
 #include "scatterprop/stats.h"
@@ -560,15 +561,35 @@ static int plain_name(const char *s)
 
 static const char *dir_name(sp_engine_direction d) { return d == SP_ENGINE_BELOW ? "<" : ">"; }
 
-sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_runplot_set *set,
-                          sp_error *err)
+/* Unless overwrite, no file of any chart of m may exist in the folder. */
+static sp_status check_free(const sp_model *m, const sp_runplot_options *opt, sp_error *err)
 {
-  memset(set, 0, sizeof *set);
-  const sp_engine_result *res = r ? sp_run_result(r) : NULL;
-  if (!res) return sp_fail(err, SP_EUSAGE, "run charts: the run has not been executed");
-  if (!res->samples_kept)
-    return sp_fail(err, SP_EUSAGE, "run charts: the run kept no samples (execute it with "
-                                   "keep_samples on)");
+  if (opt->plot.overwrite) return SP_OK;
+  static const char *const ext[4] = {".dat", ".gp", ".png", ".svg"};
+  for (size_t j = 0; j < sp_model_output_count(m); j++) {
+    char name[SP_PLOT_STEM_MAX + 1];
+    sp_plot_stem(sp_model_output_at(m, j)->name, name, sizeof name);
+    for (int kind = 0; kind < SP_RUNPLOT_NKINDS; kind++) {
+      for (int k = 0; k < 4; k++) {
+        char p[SP_PLOT_PATH_MAX];
+        int w = snprintf(p, sizeof p, "%s/%s_%s_%s%s", opt->plot.outdir,
+                         opt->prefix ? opt->prefix : "run", name, kind_names[kind], ext[k]);
+        if (w < 0 || (size_t)w >= sizeof p)
+          return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", opt->plot.outdir);
+        struct stat sb;
+        if (lstat(p, &sb) == 0) {
+          sp_fail(err, SP_EIO, "%s: file exists; refusing to overwrite it (no chart was drawn)", p);
+          return sp_error_hint(err, "give --force to replace the charts, or choose another "
+                                    "folder");
+        }
+      }
+    }
+  }
+  return SP_OK;
+}
+
+static sp_status check_options(const sp_runplot_options *opt, sp_error *err)
+{
   if (!opt) return sp_fail(err, SP_EUSAGE, "run charts: no options given");
   if (opt->prefix && !plain_name(opt->prefix))
     return sp_fail(err, SP_EUSAGE, "run charts: prefix '%s' is not a plain name "
@@ -577,7 +598,36 @@ sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_run
   if (opt->scatter_points > SP_PLOT_SCATTER_MAX)
     return sp_fail(err, SP_EUSAGE, "run charts: %zu scatter points asked; at most %d",
                    opt->scatter_points, SP_PLOT_SCATTER_MAX);
+  return SP_OK;
+}
+
+sp_status sp_runplot_check(const sp_model *m, const sp_runplot_options *opt, sp_error *err)
+{
+  if (!m) return sp_fail(err, SP_EUSAGE, "run charts: no model given");
+  sp_status st = check_options(opt, err);
+  if (st == SP_OK) st = sp_plot_check(&opt->plot, err);
+  /* A folder that does not exist yet holds no files. */
+  struct stat sb;
+  if (st == SP_OK && stat(opt->plot.outdir, &sb) == 0) st = check_free(m, opt, err);
+  return st;
+}
+
+sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_runplot_set *set,
+                          sp_error *err)
+{
+  memset(set, 0, sizeof *set);
+  const sp_engine_result *res = r ? sp_run_result(r) : NULL;
+  if (!res) return sp_fail(err, SP_EUSAGE, "run charts: the run has not been executed");
+  if (!res->samples_kept)
+    return sp_fail(err, SP_EUSAGE,
+                   "run charts: the run kept no samples (execute it with "
+                   "keep_samples on)");
+  sp_status cs = check_options(opt, err);
+  if (cs != SP_OK) return cs;
   const sp_model *m = sp_run_model(r);
+  /* Every chart's files are checked first: nothing is drawn when one is in
+   * the way. */
+  if ((cs = check_free(m, opt, err)) != SP_OK) return cs;
   size_t no = (size_t)res->noutputs;
   set->charts = calloc(no * SP_RUNPLOT_NKINDS + 1, sizeof *set->charts);
   size_t nl = sp_model_limit_count(m);

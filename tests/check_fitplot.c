@@ -953,7 +953,7 @@ START_TEST(test_cli_plot_errors)
   ck_assert_int_eq(cli("fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec), 0);
 
   ck_assert_int_eq(cli("plot"), 2);
-  ASSERT_HAS(err_text, "no fit record given");
+  ASSERT_HAS(err_text, "no fit or run record given");
   ck_assert_int_eq(cli("plot '%s' --bogus", rec), 2);
   ASSERT_HAS(err_text, "unknown option '--bogus'");
   ck_assert_int_eq(cli("plot --help"), 0);
@@ -998,6 +998,23 @@ START_TEST(test_cli_plot_errors)
   ASSERT_HAS(err_text, "the file is not the one fitted");
   snprintf(badrec, sizeof badrec, "%s/x", dir);
   ck_assert(!exists(badrec));
+
+  /* A chart folder that cannot be used is found before the fit: exit 6,
+   * and no fit record is written. */
+  char rec2[DIR_MAX], file[DIR_MAX];
+  snprintf(rec2, sizeof rec2, "%s/fit2.json", dir);
+  snprintf(file, sizeof file, "%s/afile", dir);
+  write_file(file, "x\n");
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s/sub'", rec, rec2, file),
+      6);
+  ASSERT_HAS(err_text, "afile/sub: cannot create the chart folder");
+  ASSERT_HAS(err_text, "is not a folder");
+  ck_assert(!exists(rec2));
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s'", rec, rec2, file), 6);
+  ASSERT_HAS(err_text, "afile: not a folder");
+  ck_assert(!exists(rec2));
   rm_tree(dir);
 }
 END_TEST

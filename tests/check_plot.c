@@ -891,6 +891,61 @@ START_TEST(test_overwrite)
 }
 END_TEST
 
+START_TEST(test_check_before_work)
+{
+  char dir[64], sub[128], file[128];
+  make_tmpdir(dir, sizeof dir);
+  sp_plot_options o;
+  sp_error err;
+  /* An existing folder, and one that can be made in it: ready, and the
+   * check leaves nothing behind (not even the missing folder). */
+  opts(&o, dir, "x");
+  ck_assert_msg(sp_plot_check(&o, &err) == SP_OK, "%s", err.msg);
+  snprintf(sub, sizeof sub, "%s/charts", dir);
+  o.outdir = sub;
+  ck_assert_msg(sp_plot_check(&o, &err) == SP_OK, "%s", err.msg);
+  ck_assert_int_eq(count_entries(dir), 0);
+  /* A file where the folder should be, or in its path. */
+  snprintf(file, sizeof file, "%s/afile", dir);
+  write_file(file, "x\n");
+  o.outdir = file;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "afile: not a folder");
+  snprintf(sub, sizeof sub, "%s/afile/charts", dir);
+  o.outdir = sub;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "afile is not a folder");
+  /* A parent that does not exist: the folder is made one level deep. */
+  snprintf(sub, sizeof sub, "%s/no/charts", dir);
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/no does not exist");
+  /* A folder nothing can be made in, even by root: /proc. */
+  o.outdir = "/proc";
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/proc: cannot write charts there");
+  o.outdir = "/proc/sp-charts";
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/proc/sp-charts: cannot create the chart folder in /proc");
+  /* No templates: found before any work too. */
+  const char *env = getenv("SCATTERPROP_PLOTS");
+  char *saved = env ? strdup(env) : NULL;
+  setenv("SCATTERPROP_PLOTS", dir, 1);
+  o.outdir = dir;
+  o.template_dir = dir;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "gnuplot templates not found");
+  if (saved)
+    setenv("SCATTERPROP_PLOTS", saved, 1);
+  else
+    unsetenv("SCATTERPROP_PLOTS");
+  free(saved);
+  o.outdir = NULL;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EUSAGE);
+  ck_assert_int_eq(count_entries(dir), 1);
+  rm_tree(dir);
+}
+END_TEST
+
 START_TEST(test_bad_specs)
 {
   char dir[64];
@@ -1021,6 +1076,7 @@ static Suite *plot_suite(void)
   tcase_add_test(t, test_unknown_placeholder);
   tcase_add_test(t, test_gnuplot_timeout);
   tcase_add_test(t, test_overwrite);
+  tcase_add_test(t, test_check_before_work);
   tcase_add_test(t, test_gnuplot_stand_ins);
   tcase_add_test(t, test_bad_specs);
   suite_add_tcase(s, t);

@@ -320,7 +320,8 @@ START_TEST(test_bad_records)
   write_file(path_in("bad.json"), "{\"format\": ");
   ck_assert_int_eq(sp_reportgen_write(path_in("bad.json"), &o, NULL, &err), SP_EDATA);
   ck_assert_int_eq(sp_reportgen_write(path_in("fit.json"), &o, NULL, &err), SP_EDATA);
-  ASSERT_HAS(err.msg, "scatterprop-fit");
+  ASSERT_HAS(err.msg, "is a fit record, not a run record");
+  ASSERT_HAS(err.hint, "'scatterprop plot ");
   /* Each case edits the original record. */
   char *orig = slurp(path_in("run/run.json"));
   json_t *r = load_record();
@@ -476,6 +477,129 @@ START_TEST(test_command)
 }
 END_TEST
 
+/* Whether two files hold the same bytes. */
+static int same_file(const char *a, const char *b)
+{
+  size_t na = 0, nb = 0;
+  char *x = slurp_len(a, &na), *y = slurp_len(b, &nb);
+  int same = x && y && na == nb && memcmp(x, y, na) == 0;
+  free(x);
+  free(y);
+  return same;
+}
+
+START_TEST(test_plot_run_record)
+{
+  /* The run's charts drawn while it ran ... */
+  ck_assert_int_eq(cli("propagate m.spm --samples 20000 --seed 777 --out run2 --plots p1"), 0);
+  /* ... and again from its record alone: the run is repeated and the charts
+   * are the same data and scripts, byte for byte. */
+  ck_assert_msg(cli("plot run2/run.json --out p2 --threads 1") == 0, "%s", err_text);
+  ASSERT_HAS(out_text, "run repeated from the record; every recorded figure reproduced bit for "
+                       "bit");
+  ASSERT_HAS(out_text, "charts: 5 drawn into p2/");
+  static const char *const kinds[] = {"hist", "exceed", "sens", "conv", "scatter"};
+  for (size_t k = 0; k < 5; k++) {
+    for (int e = 0; e < 2; e++) {
+      char rel1[64], rel2[64];
+      snprintf(rel1, sizeof rel1, "p1/run_y_%s.%s", kinds[k], e ? "gp" : "dat");
+      snprintf(rel2, sizeof rel2, "p2/run_y_%s.%s", kinds[k], e ? "gp" : "dat");
+      ck_assert_msg(same_file(path_in(rel1), path_in(rel2)), "%s and %s differ", rel1, rel2);
+    }
+  }
+  /* Charts in the way: nothing drawn, exit 6, before the run is repeated;
+   * --force replaces them. */
+  ck_assert_int_eq(cli("plot run2/run.json --out p2"), 6);
+  ASSERT_HAS(err_text, "p2/run_y_hist.dat: file exists");
+  ASSERT_HAS(err_text, "--force");
+  ck_assert_int_eq(cli("plot run2/run.json --out p2 --force"), 0);
+  /* A folder that cannot be made: exit 6, naming it. */
+  write_file(path_in("afile"), "x\n");
+  ck_assert_int_eq(cli("plot run2/run.json --out afile/charts"), 6);
+  ASSERT_HAS(err_text, "afile/charts: cannot create the chart folder");
+  /* A record whose figures the run does not reproduce: exit 1, no chart. */
+  json_error_t je;
+  json_t *r = json_load_file(path_in("run2/run.json"), 0, &je);
+  ck_assert_ptr_nonnull(r);
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_set_new(y, "mean", json_real(json_number_value(json_object_get(y, "mean")) * 1.001));
+  ck_assert_int_eq(json_dump_file(r, path_in("run2/run.json"), JSON_REAL_PRECISION(17)), 0);
+  json_decref(r);
+  ck_assert_int_eq(cli("plot run2/run.json --out p3"), 1);
+  ASSERT_HAS(err_text, "results.outputs[0].mean");
+  ASSERT_HAS(err_text, "no chart was drawn");
+  ck_assert_int_ne(access(path_in("p3"), F_OK), 0);
+}
+END_TEST
+
+START_TEST(test_plot_and_report_on_the_wrong_file)
+{
+  /* Not a record at all: exit 3, the fit record reader's message (the
+   * field or the JSON position) and a hint naming both kinds. */
+  write_file(path_in("x.json"), "{\"a\": 1}\n");
+  ck_assert_int_eq(cli("plot x.json"), 3);
+  ASSERT_HAS(err_text, "x.json: field 'format' is missing");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  ASSERT_HAS(err_text, "or a run record");
+  write_file(path_in("bad.json"), "{\"format\": ");
+  ck_assert_int_eq(cli("plot bad.json"), 3);
+  ASSERT_HAS(err_text, "bad.json:1:");
+  ASSERT_HAS(err_text, "not valid JSON");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  write_file(path_in("other.json"), "{\"format\": \"someone-else\", \"version\": 1}\n");
+  ck_assert_int_eq(cli("plot other.json"), 3);
+  ASSERT_HAS(err_text, "someone-else");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  ck_assert_int_eq(cli("plot missing.json"), 6);
+  ASSERT_HAS(err_text, "missing.json");
+  ck_assert_int_eq(access(path_in("charts"), F_OK), -1);
+  /* The kind of each record. */
+  sp_reportgen_kind kind;
+  sp_error err;
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("fit.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_FIT);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("run/run.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_RUN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("other.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_UNKNOWN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("bad.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_UNKNOWN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("missing.json"), &kind, &err), SP_EIO);
+  /* Options of the other kind of record: usage errors. */
+  ck_assert_int_eq(cli("plot fit.json --threads 2"), 2);
+  ck_assert_int_eq(cli("plot run/run.json --data d.csv"), 2);
+  /* A report of a fit record: exit 3, and the hint says what to do. */
+  ck_assert_int_eq(cli("report fit.json"), 3);
+  ASSERT_HAS(err_text, "fit.json is a fit record, not a run record");
+  ASSERT_HAS(err_text, "'scatterprop plot fit.json'");
+  ck_assert_int_ne(access(path_in("report.html"), F_OK), 0);
+  /* An existing report is kept without --force, byte for byte. */
+  write_file(path_in("kept.html"), "mine\n");
+  ck_assert_int_eq(cli("report run/run.json --out kept.html"), 6);
+  ASSERT_HAS(err_text, "kept.html exists");
+  char *kept = slurp(path_in("kept.html"));
+  ck_assert_str_eq(kept, "mine\n");
+  free(kept);
+}
+END_TEST
+
+START_TEST(test_propagate_plots_checked_before_the_run)
+{
+  /* Charts in the way, or a chart folder that cannot be made, are found
+   * before the run: exit 6 and no run record. */
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run3 --plots p4"), 0);
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots p4"), 6);
+  ASSERT_HAS(err_text, "p4/run_y_hist.dat: file exists");
+  ck_assert_int_ne(access(path_in("run4"), F_OK), 0);
+  write_file(path_in("afile"), "x\n");
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots afile"), 6);
+  ASSERT_HAS(err_text, "afile: not a folder");
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots afile/sub"), 6);
+  ASSERT_HAS(err_text, "afile/sub: cannot create the chart folder");
+  ck_assert_int_ne(access(path_in("run4"), F_OK), 0);
+}
+END_TEST
+
 static Suite *suite(void)
 {
   Suite *s = suite_create("reportgen");
@@ -492,6 +616,9 @@ static Suite *suite(void)
   tcase_add_test(t, test_from_another_folder_and_an_archive);
   tcase_add_test(t, test_model_without_fits);
   tcase_add_test(t, test_command);
+  tcase_add_test(t, test_plot_run_record);
+  tcase_add_test(t, test_plot_and_report_on_the_wrong_file);
+  tcase_add_test(t, test_propagate_plots_checked_before_the_run);
   suite_add_tcase(s, t);
   return s;
 }

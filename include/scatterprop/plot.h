@@ -312,6 +312,18 @@ sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_err
  * buf[0..n), or 0. */
 int sp_plot_gnuplot_found(const sp_plot_options *opt, char *buf, size_t n);
 
+/* Checks, before any long work, that charts can be drawn with opt: the
+ * templates are found (sp_plot_template_dir with opt->template_dir), and
+ * opt->outdir is a folder in which an entry can be made, or does not exist
+ * and its parent folder is one (outdir itself is not made here).  The
+ * check makes and removes an empty hidden folder in that folder.  Whether
+ * gnuplot is installed is not checked (without it the scripts are still
+ * written).  Errors: SP_EUSAGE (no outdir), SP_EIO (templates not found;
+ * outdir is not a folder, its parent does not exist, or nothing can be
+ * written there: the message names the folder and the reason), SP_ELIMIT
+ * (a path too long). */
+sp_status sp_plot_check(const sp_plot_options *opt, sp_error *err);
+
 #ifdef __cplusplus
 }
 #endif

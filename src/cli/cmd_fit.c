@@ -333,6 +333,19 @@ int cli_fit_run(int argc, char **argv)
     o.nfamilies = nf;
   }
 
+  /* A chart folder that cannot be used is found before the fit, not after
+   * it (and before the record is written). */
+  if (plotdir) {
+    sp_plot_options po;
+    char tdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
+    if (sp_plot_check(&po, &err) != SP_OK) {
+      free(fambuf);
+      free(famnames);
+      return cli_report(&err);
+    }
+  }
+
   sp_ingest_options io;
   sp_ingest_options_init(&io);
   sp_table *t = NULL;
