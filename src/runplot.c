@@ -240,8 +240,9 @@ static sp_status draw_hist(const out_ctx *c, const sp_plot_options *po, sp_runpl
   sp_plot_run_hist spec;
   memset(&spec, 0, sizeof spec);
   char title[SP_PLOT_LABEL_MAX];
-  snprintf(title, sizeof title, "%s: distribution of %llu samples", c->mo->name,
-           (unsigned long long)o->n);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(title, sizeof title, "%s: distribution of %s samples", c->mo->name,
+           sp_plot_count_text((unsigned long long)o->n, cnt, sizeof cnt));
   spec.title = title;
   spec.axis = c->axis;
   spec.edges = edges;
@@ -290,10 +291,12 @@ static sp_status draw_exceed(const out_ctx *c, const sp_plot_options *po, sp_run
   sp_status st = sp_plot_run_exceedance(&spec, po, &ch->out, err);
   if (st == SP_OK) {
     ch->drawn = 1;
+    char cnt[SP_PLOT_COUNT_MAX];
     snprintf(ch->caption, sizeof ch->caption,
-             "%s: empirical probability of exceedance P(Y > y) of the %zu finite samples, "
+             "%s: empirical probability of exceedance P(Y > y) of the %s finite samples, "
              "logarithmic axis%s.",
-             c->mo->name, c->nfinite, c->nlim ? "; limits dashed" : "");
+             c->mo->name, sp_plot_count_text(c->nfinite, cnt, sizeof cnt),
+             c->nlim ? "; limits dashed" : "");
   }
   return st;
 }
@@ -396,11 +399,12 @@ static sp_status draw_bars(const out_ctx *c, const sp_plot_options *po, sp_runpl
   sp_status st = sp_plot_run_sensitivity(&spec, po, &ch->out, err);
   if (st == SP_OK) {
     ch->drawn = 1;
+    char cnt[SP_PLOT_COUNT_MAX];
     if (sobol)
       snprintf(ch->caption, sizeof ch->caption,
-               "%s: first-order (filled) and total-effect (outlined) Sobol' indices from %llu "
+               "%s: first-order (filled) and total-effect (outlined) Sobol' indices from %s "
                "base samples, largest at the top.",
-               c->mo->name, (unsigned long long)sob->base_samples);
+               c->mo->name, sp_plot_count_text(sob->base_samples, cnt, sizeof cnt));
     else
       snprintf(ch->caption, sizeof ch->caption,
                "%s: each input's share of the sum of squared Spearman rank correlations "
@@ -460,7 +464,7 @@ static sp_status draw_conv(const out_ctx *c, const sp_plot_options *po, sp_runpl
   if (st == SP_OK) {
     ch->drawn = 1;
     snprintf(ch->caption, sizeof ch->caption,
-             "%s: mean of the first N samples with +-2 standard errors (s/sqrt(N)) and the "
+             "%s: mean of the first N samples with \u00b12 standard errors (s/\u221aN) and the "
              "ends of the %g %% coverage interval of those samples, N = %d, %d, ... and the "
              "whole run.",
              c->mo->name, 100 * res->coverage, SP_RUNPLOT_CONV_FIRST, 2 * SP_RUNPLOT_CONV_FIRST);
@@ -516,8 +520,11 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
     } else {
       const sp_model_input *mi = sp_model_input_at(m, best);
       char title[SP_PLOT_LABEL_MAX];
-      snprintf(title, sizeof title, "%s against %s: a fresh subsample of %zu points, not the "
-                                    "run's samples", c->mo->name, mi->name, kept);
+      char cnt[SP_PLOT_COUNT_MAX];
+      snprintf(title, sizeof title,
+               "%s against %s: a fresh subsample of %s points, not the "
+               "run's samples",
+               c->mo->name, mi->name, sp_plot_count_text(kept, cnt, sizeof cnt));
       sp_plot_scatter spec;
       memset(&spec, 0, sizeof spec);
       spec.title = title;
@@ -533,10 +540,11 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
       if (st == SP_OK) {
         ch->drawn = 1;
         snprintf(ch->caption, sizeof ch->caption,
-                 "%s against its most influential input %s (largest rank share) on %zu "
+                 "%s against its most influential input %s (largest rank share) on %s "
                  "points drawn afresh with the run's seed on the streams of block 2^48 - 2, "
                  "none of the run's own samples%s.",
-                 c->mo->name, mi->name, kept, c->nlim ? "; limits dashed" : "");
+                 c->mo->name, mi->name, sp_plot_count_text(kept, cnt, sizeof cnt),
+                 c->nlim ? "; limits dashed" : "");
       }
     }
   }

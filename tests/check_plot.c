@@ -149,6 +149,9 @@ static void assert_rendered(const sp_plot_output *o)
   char *svg = slurp(o->svg);
   ASSERT_HAS(svg, "<svg");
   ASSERT_HAS(svg, "</svg>");
+  /* The 11 pt text scaled by 4/3 (style.gp's sp_svg_fontscale): the same
+   * size as in the PNG, where pngcairo draws points at 96 px per inch. */
+  ASSERT_HAS(svg, "font-size=\"14.67\"");
   free(svg);
   char *gp = slurp(o->script);
   ck_assert(strncmp(gp, "# Made by scatterprop", 21) == 0);
@@ -319,6 +322,14 @@ START_TEST(test_every_template_renders)
   opts(&o, dir, "run_tau_exceed");
   ck_assert_msg(sp_plot_run_exceedance(&ex, &o, &out, &err) == SP_OK, "%s", err.msg);
   assert_rendered(&out);
+  /* The log axis in one notation: 1, 10^-1, 10^-2, 10^-3 (n = 2000 reaches
+   * 1/2000), never gnuplot's mix of 0.001 and 1e-04. */
+  char *svg = slurp(out.svg);
+  ASSERT_HAS(svg, ">10\xE2\x81\xBB\xC2\xB9<"); /* 10⁻¹ */
+  ASSERT_HAS(svg, ">10\xE2\x81\xBB\xC2\xB3<"); /* 10⁻³ */
+  ASSERT_LACKS(svg, ">0.001<");
+  ASSERT_LACKS(svg, "e-0");
+  free(svg);
 
   const char *names[3] = {"wire_d", "Dm", "G"};
   double share[3] = {0.62, 0.25, 0.09}, total[3] = {0.64, 0.27, 0.10};
@@ -328,6 +339,12 @@ START_TEST(test_every_template_renders)
   opts(&o, dir, "run_tau_sens");
   ck_assert_msg(sp_plot_run_sensitivity(&se, &o, &out, &err) == SP_OK, "%s", err.msg);
   assert_rendered(&out);
+  /* The value beside each bar is set off by an offset, not a leading
+   * blank, which SVG text would collapse (the label would touch the bar). */
+  svg = slurp(out.svg);
+  ASSERT_HAS(svg, ">62.0 %<");
+  ASSERT_LACKS(svg, "> 62.0 %<");
+  free(svg);
 
   double nn[6] = {1e3, 2e3, 4e3, 8e3, 1.6e4, 3.2e4};
   double mean[6] = {541, 539.5, 540.2, 540.1, 539.9, 540.0};

@@ -294,6 +294,13 @@ sp_status sp_plot_run_scatter(const sp_plot_scatter *spec, const sp_plot_options
 #define SP_PLOT_QUOTED_MAX (SP_PLOT_LABEL_MAX + 8)
 size_t sp_plot_gnuplot_string(const char *text, char *buf, size_t n);
 
+/* A count as charts and captions show it: digits in groups of three
+ * separated by a thin space (U+2009) from 10 000 up, as ISO 80000-1 writes
+ * numbers ("1 000 000"; 4-digit counts stay "2000"), into buf[0..n),
+ * n >= SP_PLOT_COUNT_MAX; returns buf. */
+#define SP_PLOT_COUNT_MAX 40
+char *sp_plot_count_text(unsigned long long v, char *buf, size_t n);
+
 /* A file stem made from any text: [A-Za-z0-9_-] kept, runs of anything
  * else become one '_', no leading '_' or '-', cut at SP_PLOT_STEM_MAX
  * bytes; "chart" when nothing is left.  Writes into buf[0..n), n >= 8;
