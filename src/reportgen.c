@@ -1212,7 +1212,8 @@ static char *params_text(pool *p, const sp_family *fam, const json_t *params)
   return pool_str(p, buf);
 }
 
-static void candidates_table(builder *b, const json_t *cands, const char *caption)
+static void candidates_table(builder *b, const json_t *cands, const char *chosen,
+                             const char *caption)
 {
   size_t nc = json_array_size(cands);
   static const char *const head[] = {"rank", "family", "parameters", "log L", "AICc",
@@ -1265,9 +1266,18 @@ static void candidates_table(builder *b, const json_t *cands, const char *captio
     const char *rel = !bound ? "" : strcmp(bound, "below") == 0 ? "<\u00a0"
                                   : strcmp(bound, "above") == 0 ? ">\u00a0" : "";
     double p = gnum(a2, "p");
-    set_cell(b, t, row, 7, isfinite(p) ? pool_fmt(&b->p, "%s%.3g", rel, p) : "-");
-    set_cell(b, t, row, 8, json_is_true(json_object_get(e, "rejected")) ? "rejected by A\u00b2"
-                                                                         : "");
+    /* Below 0.001 as "< 0.001", as 'scatterprop fit' prints it: a
+     * bootstrap p-value of 1/(B + 1) says only that no replicate reached
+     * the statistic, and three more digits would suggest a precision the
+     * estimate does not have. */
+    if (isfinite(p) && p < 0.001 && !rel[0])
+      set_cell(b, t, row, 7, "<\u00a00.001");
+    else
+      set_cell(b, t, row, 7, isfinite(p) ? pool_fmt(&b->p, "%s%.3g", rel, p) : "-");
+    const char *verdict = json_is_true(json_object_get(e, "rejected"))       ? "rejected by A\u00b2"
+                          : chosen && strcmp(gstr(e, "family"), chosen) == 0 ? "chosen"
+                                                                             : "";
+    set_cell(b, t, row, 8, verdict);
   }
   free(order);
 }
@@ -1295,9 +1305,10 @@ static sp_status section_fits(builder *b, const chart_env *env, const fitsrc *fi
                        : strcmp(sel, "bic") == 0 ? "BIC"
                        : strcmp(sel, "loglik") == 0 ? "log-likelihood"
                                                     : sel;
-    candidates_table(b, json_object_get(f->root, "candidates"),
-                     pool_fmt(&b->p, "%s: candidates ranked by %s (%zu values; A\u00b2 "
-                                     "rejection level %g).",
+    candidates_table(b, json_object_get(f->root, "candidates"), f->rec.family->name,
+                     pool_fmt(&b->p,
+                              "%s: candidates ranked by %s (%zu values; A\u00b2 "
+                              "rejection level %g).",
                               f->col->name, crit, f->n, gnum(o, "alpha")));
     const json_t *by = json_object_get(f->root, "by");
     if (json_is_object(by)) {
