@@ -600,6 +600,140 @@ START_TEST(test_propagate_plots_checked_before_the_run)
 }
 END_TEST
 
+/* s as one word for sh(): single-quoted, each ' as '\'' (the test's own
+ * shell must not run the hostile text either; if it did, the markers
+ * below would show it). */
+static const char *shq(const char *s)
+{
+  static char buf[4][2048];
+  static int k;
+  k = (k + 1) % 4;
+  size_t n = 0;
+  buf[k][n++] = '\'';
+  for (; *s && n < sizeof buf[k] - 6; s++) {
+    if (*s == '\'') {
+      memcpy(buf[k] + n, "'\\''", 4);
+      n += 4;
+    } else {
+      buf[k][n++] = *s;
+    }
+  }
+  buf[k][n++] = '\'';
+  buf[k][n] = '\0';
+  return buf[k];
+}
+
+/* Whether a marker (a file named pwned_*, as the commands in the hostile
+ * texts below would name it) exists below path.  Chart stems made from
+ * those texts start with fit_ or run_. */
+static int marker_below(const char *path)
+{
+  DIR *d = opendir(path);
+  if (!d) return 0;
+  int found = 0;
+  struct dirent *e;
+  while (!found && (e = readdir(d)) != NULL) {
+    if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0) continue;
+    if (strncmp(e->d_name, "pwned_", 6) == 0) found = 1;
+    char sub[2048];
+    snprintf(sub, sizeof sub, "%s/%s", path, e->d_name);
+    struct stat sb;
+    if (!found && lstat(sub, &sb) == 0 && S_ISDIR(sb.st_mode)) found = marker_below(sub);
+  }
+  closedir(d);
+  return found;
+}
+
+START_TEST(test_hostile_files_end_to_end)
+{
+  /* Every text a user's files can carry, trying gnuplot's back-quotes and
+   * system() (and a shell's $( )): the data file's name, its metadata, the
+   * column header, the lot ids (one with a newline), the fit record's
+   * name, the model's file name.  Markers are absolute paths in the test
+   * folder, so a command run in gnuplot's staging folder (removed after
+   * each chart) would still leave its mark. */
+  char mk[8][512];
+  static const char *const tag[8] = {"meta1", "meta2", "head1", "head2",
+                                     "lot1",  "lot2",  "lot3",  "lot4"};
+  for (int i = 0; i < 8; i++)
+    snprintf(mk[i], sizeof mk[i], "%s/pwned_%s", dir, tag[i]);
+  const char *csv = "$(touch pwned_f)`touch pwned_g`.csv";
+  FILE *fp = fopen(path_in(csv), "wb");
+  ck_assert_ptr_nonnull(fp);
+  fprintf(fp, "# gauge: `touch %s` system('touch %s') \"quoted\" 'single'\n", mk[0], mk[1]);
+  char column[1200];
+  snprintf(column, sizeof column, "`touch %s` system(\"touch %s\") x", mk[2], mk[3]);
+  fprintf(fp, "lot,\"`touch %s` system(\"\"touch %s\"\") x [mm]\"\n", mk[2], mk[3]);
+  for (int i = 0; i < 40; i++) {
+    int k = (i * 17) % 40;
+    double x = 10 + 0.2 * gsl_cdf_ugaussian_Pinv((k + 0.5) / 40);
+    if (i < 20)
+      fprintf(fp, "\"A`touch %s`$(touch %s)\",%.4f\n", mk[4], mk[5], x);
+    else
+      fprintf(fp, "\"B\nsystem('touch %s') @x %s\",%.4f\n", mk[6], mk[7], x);
+  }
+  fclose(fp);
+  const char *rec = "`touch pwned_r`.json";
+  const char *model = "$(touch pwned_m).spm";
+  char mtext[512];
+  snprintf(mtext, sizeof mtext,
+           "input a [mm] ~ fit(\"%s\")\n"
+           "input b [mm] ~ uniform(min=0, max=1)\n"
+           "output y [mm] = a + 2*b\n"
+           "limit y < 11.5 [mm]\n",
+           rec);
+  write_file(path_in(model), mtext);
+
+  ck_assert_msg(sh(SP " fit %s --column %s --by lot --families normal,lognormal --pvalues none "
+                      "--out %s --plots fc",
+                   shq(csv), shq(column), shq(rec)) == 0,
+                "fit: %s", err_text);
+  ASSERT_HAS(out_text, "charts in fc: 10 drawn (.png .svg .gp .dat each)");
+  ck_assert_msg(sh(SP " plot %s --out fc2", shq(rec)) == 0, "plot: %s", err_text);
+  ck_assert_msg(sh(SP " propagate %s --samples 20000 --seed 3 --out run5 --plots rc", shq(model)) ==
+                    0,
+                "propagate: %s", err_text);
+  ASSERT_HAS(out_text, "charts: 5 drawn into rc/ (5 rendered to PNG and SVG)");
+  ck_assert_msg(cli("plot run5/run.json --out rc2") == 0, "plot run: %s", err_text);
+  ck_assert_msg(cli("report run5/run.json") == 0, "report: %s", err_text);
+  ASSERT_HAS(out_text, "9 figures, 9 drawn");
+
+  /* Nothing ran: no marker anywhere. */
+  for (int i = 0; i < 8; i++)
+    ck_assert_msg(access(mk[i], F_OK) != 0, "%s was created: text from a file ran", mk[i]);
+  ck_assert_msg(!marker_below(dir), "a pwned_* file was created below %s", dir);
+  /* The scripts hold the texts neutralised: no back-quote, no system( and
+   * no @ anywhere outside the template's own comments. */
+  DIR *d = opendir(path_in("fc"));
+  ck_assert_ptr_nonnull(d);
+  struct dirent *e;
+  size_t scripts = 0;
+  while ((e = readdir(d)) != NULL) {
+    size_t len = strlen(e->d_name);
+    if (len < 3 || strcmp(e->d_name + len - 3, ".gp") != 0) continue;
+    char rel[600];
+    snprintf(rel, sizeof rel, "fc/%s", e->d_name);
+    char *gp = slurp(path_in(rel));
+    ck_assert_msg(!strchr(gp, '`'), "%s holds a back-quote", rel);
+    ASSERT_LACKS(gp, "system(");
+    ASSERT_LACKS(gp, "$(");
+    ASSERT_HAS(gp, "?touch ");
+    free(gp);
+    scripts++;
+  }
+  closedir(d);
+  ck_assert_uint_eq(scripts, 10);
+  /* The report shows them as text. */
+  char *html = slurp(path_in("run5/report.html"));
+  ASSERT_HAS(html, "$(touch pwned_m).spm");
+  ASSERT_HAS(html, "`touch pwned_g`.csv");
+  ASSERT_HAS(html, "system(&quot;touch ");
+  ASSERT_HAS(html, "system(&#39;touch ");
+  ASSERT_LACKS(html, "<script");
+  free(html);
+}
+END_TEST
+
 static Suite *suite(void)
 {
   Suite *s = suite_create("reportgen");
@@ -619,6 +753,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_plot_run_record);
   tcase_add_test(t, test_plot_and_report_on_the_wrong_file);
   tcase_add_test(t, test_propagate_plots_checked_before_the_run);
+  tcase_add_test(t, test_hostile_files_end_to_end);
   suite_add_tcase(s, t);
   return s;
 }
