@@ -507,6 +507,14 @@ START_TEST(test_plot_run_record)
       ck_assert_msg(same_file(path_in(rel1), path_in(rel2)), "%s and %s differ", rel1, rel2);
     }
   }
+  /* Without gnuplot: the data and scripts, and one line on how to render
+   * them. */
+  ck_assert_msg(sh("PATH=/nonexistent " SP " plot run2/run.json --out p5") == 0, "%s", err_text);
+  ASSERT_HAS(out_text, "charts: 5 drawn into p5/ (0 rendered to PNG and SVG)");
+  ASSERT_HAS(out_text, "hint: gnuplot not found; to render the chart: cd p5 && gnuplot "
+                       "run_y_hist.gp (and likewise for the other 4 scripts)");
+  ck_assert_int_eq(access(path_in("p5/run_y_conv.gp"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("p5/run_y_conv.png"), F_OK), 0);
   /* Charts in the way: nothing drawn, exit 6, before the run is repeated;
    * --force replaces them. */
   ck_assert_int_eq(cli("plot run2/run.json --out p2"), 6);

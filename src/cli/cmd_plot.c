@@ -127,15 +127,23 @@ void cli_runplot_print(FILE *out, const sp_runplot_set *set, const char *dir)
 {
   fprintf(out, "\ncharts: %zu drawn into %s/ (%zu rendered to PNG and SVG)\n", set->ndrawn, dir,
           set->nrendered);
-  int hinted = 0;
+  const char *hint = NULL;
+  size_t unrendered = 0;
   for (size_t k = 0; k < set->ncharts; k++) {
     const sp_runplot_chart *c = &set->charts[k];
-    if (c->drawn && !c->out.rendered && !hinted) {
-      fprintf(out, "  %s\n", c->note);
-      hinted = 1;
+    if (c->drawn && !c->out.rendered) {
+      if (!hint) hint = c->note;
+      unrendered++;
     } else if (!c->drawn && c->kind != SP_RUNPLOT_SOBOL) {
       fprintf(out, "  %s\n", c->note);
     }
+  }
+  /* One line says how to render them all, as for a fit's charts. */
+  if (hint && hint[0]) {
+    if (unrendered > 1)
+      fprintf(out, "hint: %s (and likewise for the other %zu scripts)\n", hint, unrendered - 1);
+    else
+      fprintf(out, "hint: %s\n", hint);
   }
 }
 
