@@ -1852,6 +1852,42 @@ static sp_status runsrc_inputs(runsrc *s, const char *run_record, sp_error *err)
   return st;
 }
 
+/* Whether the report can be written at path, found before the run is
+ * repeated: not a folder, not an existing file unless overwrite, and its
+ * folder one in which a file can be made (tried with a file made and
+ * removed at once: permission bits do not tell for root or a read-only
+ * mount). */
+static sp_status check_outpath(const char *path, int overwrite, sp_error *err)
+{
+  struct stat sb;
+  if (stat(path, &sb) == 0) {
+    if (S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s is a folder; the report is one file", path);
+      return sp_error_hint(err, "give --out the report's file name, e.g. %s/report.html", path);
+    }
+    if (!overwrite) return sp_fail(err, SP_EIO, "%s exists; give --force to replace it", path);
+  }
+  char d[SP_PLOT_PATH_MAX], probe[SP_PLOT_PATH_MAX + 32];
+  dir_of(path, d, sizeof d);
+  if (stat(d, &sb) != 0 || !S_ISDIR(sb.st_mode)) {
+    sp_fail(err, SP_EIO, "%s: cannot write the report: folder %s does not exist", path, d);
+    return sp_error_hint(err, "create the folder first, or give --out another file");
+  }
+  /* mkstemp template: six X characters, spelled out to keep markers greppable. */
+  snprintf(probe, sizeof probe, "%s/.sp-report.%s", d,
+           "XX"
+           "XX"
+           "XX");
+  int fd = mkstemp(probe);
+  if (fd < 0) {
+    sp_fail(err, SP_EIO, "%s: cannot write the report in %s: %s", path, d, strerror(errno));
+    return sp_error_hint(err, "give --out a file in a folder you can write in");
+  }
+  close(fd);
+  unlink(probe);
+  return SP_OK;
+}
+
 sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options *opt_in,
                              sp_reportgen_result *res, sp_error *err)
 {
@@ -1874,9 +1910,7 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
                    : snprintf(outpath, sizeof outpath, "%s/report.html", d);
   if (w < 0 || (size_t)w >= sizeof outpath)
     st = sp_fail(err, SP_ELIMIT, "report path too long (%d bytes)", w);
-  if (st == SP_OK && !opt->overwrite && access(outpath, F_OK) == 0) {
-    st = sp_fail(err, SP_EIO, "%s exists; give --force to replace it", outpath);
-  }
+  if (st == SP_OK) st = check_outpath(outpath, opt->overwrite, err);
   if (st == SP_OK) st = runsrc_inputs(&src, run_record, err);
   const char *model_path = src.model_path;
   fitsrc *fits = src.fits;

@@ -588,6 +588,16 @@ START_TEST(test_plot_and_report_on_the_wrong_file)
   char *kept = slurp(path_in("kept.html"));
   ck_assert_str_eq(kept, "mine\n");
   free(kept);
+  /* A folder given as the report, or a report in a folder that does not
+   * exist or cannot be written: found before the run is repeated. */
+  ck_assert_int_eq(mkdir(path_in("adir"), 0755), 0);
+  ck_assert_int_eq(cli("report run/run.json --out adir --force"), 6);
+  ASSERT_HAS(err_text, "adir is a folder; the report is one file");
+  ck_assert_int_eq(cli("report run/run.json --out nodir/r.html"), 6);
+  ASSERT_HAS(err_text, "folder nodir does not exist");
+  ck_assert_int_eq(cli("report run/run.json --out /proc/r.html"), 6);
+  ASSERT_HAS(err_text, "cannot write the report in /proc");
+  ASSERT_LACKS(out_text, "repeated run");
 }
 END_TEST
 
