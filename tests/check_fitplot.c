@@ -1015,6 +1015,26 @@ START_TEST(test_cli_plot_errors)
       cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s'", rec, rec2, file), 6);
   ASSERT_HAS(err_text, "afile: not a folder");
   ck_assert(!exists(rec2));
+  /* Charts in the way: found before the record is written. */
+  char charts[DIR_MAX], chart[DIR_MAX + 32];
+  snprintf(charts, sizeof charts, "%s/charts", dir);
+  ck_assert_int_eq(mkdir(charts, 0755), 0);
+  snprintf(chart, sizeof chart, "%s/fit_wire_d_ecdf.svg", charts);
+  write_file(chart, "x\n");
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s'", csv, rec2, charts), 6);
+  ASSERT_HAS(err_text, "fit_wire_d_ecdf.svg: file exists");
+  ck_assert(!exists(rec2));
+  snprintf(chart, sizeof chart, "%s/fit_wire_d_hist.dat", charts);
+  ck_assert(!exists(chart));
+  /* An existing record: refused before the fit (with --force replaced). */
+  write_file(rec2, "mine\n");
+  ck_assert_int_eq(cli("fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec2), 6);
+  ASSERT_HAS(err_text, "fit2.json: file exists; refusing to overwrite it");
+  ASSERT_LACKS(out_text, "rank");
+  char *mine = slurp(rec2);
+  ck_assert_str_eq(mine, "mine\n");
+  free(mine);
   rm_tree(dir);
 }
 END_TEST
