@@ -23,8 +23,10 @@ step "5. Fit the wire diameter, lot by lot and pooled"
 "$SP" fit "$DATA/wire_d.csv" --column wire_d --by lot --out "$OUT/fits/wire_d.json" \
   --plots "$OUT/plots" --force
 step "6. Fit the coil diameter, the shear modulus (by lot) and the assembly load (by station)"
-"$SP" fit "$DATA/coil_dm.csv" --column Dm --out "$OUT/fits/coil_dm.json" --force
-"$SP" fit "$DATA/shear_modulus.csv" --column G --by lot --out "$OUT/fits/shear_modulus.json" --force
+"$SP" fit "$DATA/coil_dm.csv" --column Dm --out "$OUT/fits/coil_dm.json" \
+  --plots "$OUT/plots" --force
+"$SP" fit "$DATA/shear_modulus.csv" --column G --by lot --out "$OUT/fits/shear_modulus.json" \
+  --plots "$OUT/plots" --force
 "$SP" fit "$DATA/assembly_load.csv" --column load --by station \
   --out "$OUT/fits/assembly_load.json" --plots "$OUT/plots" --force
 

@@ -17,7 +17,8 @@ set output sp_stem . '.png'
 plot sp_data index 0 using 1:2 with steps lw 1.5 lc rgb c_ink title steps_title, \
      for [i = 1:ncurves] sp_data index i using 1:2 with lines lt i dt 1 + (i > 1) \
        title cand_title[i]
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

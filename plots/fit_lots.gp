@@ -18,7 +18,8 @@ plot for [i = 1:nlots] sp_data index (i - 1) using 1:2 with steps lt i lw 1.75 \
        title lot_title[i], \
      for [k = 1:has_pooled] sp_data index nlots using 1:2 with lines lw 1.5 dt 2 \
        lc rgb c_ink title pooled_title
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

@@ -19,7 +19,8 @@ plot for [k = 1:has_band] sp_data index 1 using 1:2:3 with filledcurves \
        fs transparent solid 0.22 noborder lc rgb c_sky title band_title, \
      sp_data index 2 using 1:2 with lines lw 1.5 dt 2 lc rgb c_vermillion title line_title, \
      sp_data index 0 using 1:2 with points pt 7 ps 0.7 lc rgb c_blue title points_title
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

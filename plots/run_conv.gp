@@ -27,7 +27,8 @@ plot for [k = 1:has_se] sp_data index 1 using 1:2:3 with filledcurves \
      for [k = 1:has_interval] sp_data index 2 using 1:2 with linespoints lt 2 dt 2 \
        title interval_title, \
      for [k = 1:has_interval] sp_data index 2 using 1:3 with linespoints lt 2 dt 2 notitle
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

@@ -30,7 +30,8 @@ plot sp_data index 0 using (($1 + $2) / 2):3:($2 - $1) with boxes \
        fs solid 1.0 border lc rgb 'white' lc rgb c_bars title bars_title, \
      for [k = 1:has_cov] keyentry with boxes fs transparent solid 0.18 noborder \
        lc rgb c_orange title cov_title
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

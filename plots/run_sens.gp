@@ -24,9 +24,10 @@ plot sp_data index 0 using (0):1:(0):(100 * $2):($1 - 0.3):($1 + 0.3) with boxxy
        fs solid 1.0 noborder lc rgb c_blue title share_title, \
      for [k = 1:has_total] sp_data index 0 using (0):1:(0):(100 * $3):($1 - 0.38):($1 + 0.38) \
        with boxxyerror fs empty border lc rgb c_vermillion lw 1.5 title total_title, \
-     sp_data index 0 using (100 * $4):1:(sprintf(' %.1f %%', 100 * $2)) \
-       with labels left textcolor rgb c_ink notitle
-set terminal svg size sp_width, sp_height font sp_font noenhanced background rgb 'white'
+     sp_data index 0 using (100 * $4):1:(sprintf('%.1f %%', 100 * $2)) \
+       with labels left offset character 0.5, 0 textcolor rgb c_ink notitle
+set terminal svg size sp_width, sp_height font sp_font fontscale sp_svg_fontscale noenhanced \
+    background rgb 'white'
 set output sp_stem . '.svg'
 replot
 unset output

@@ -16,6 +16,11 @@
 set encoding utf8
 sp_font       = 'DejaVu Sans,11'
 sp_font_title = 'DejaVu Sans,12'
+# The svg terminal writes a font size of N points as N user units (px),
+# while pngcairo draws N points at 96 px per inch, 4/3 as large: the SVG
+# terminal lines scale their fonts by 4/3 so that the SVG (embedded in the
+# report, printed 180 mm wide) shows the same text size as the PNG.
+sp_svg_fontscale = 4.0 / 3.0
 
 c_blue       = '#0072B2'
 c_vermillion = '#D55E00'

@@ -602,8 +602,11 @@ static sp_status draw_set(const vset *s, const sp_fitplot_plan *plan, const sp_p
   return SP_OK;
 }
 
-sp_status sp_fitplot_draw(const sp_fitplot_plan *plan, const sp_table *t,
-                          const sp_plot_options *opt, sp_fitplot_charts *out, sp_error *err)
+/* sp_fitplot_draw, or with check_only its checks alone (nothing drawn, no
+ * folder made). */
+static sp_status draw_charts(const sp_fitplot_plan *plan, const sp_table *t,
+                             const sp_plot_options *opt, sp_fitplot_charts *out, int check_only,
+                             sp_error *err)
 {
   memset(out, 0, sizeof *out);
   if (!plan || !plan->column || !t || !opt || !opt->outdir || !*opt->outdir)
@@ -732,6 +735,15 @@ sp_status sp_fitplot_draw(const sp_fitplot_plan *plan, const sp_table *t,
     if (shown == 0) snprintf(c->note, sizeof c->note, "no lot has a value");
   }
 
+  if (check_only) {
+    /* The folder and the templates as sp_plot_check sees them; a folder
+     * that does not exist yet holds no chart. */
+    struct stat sb;
+    if ((st = sp_plot_check(opt, err))) goto done;
+    if (!opt->overwrite && stat(opt->outdir, &sb) == 0 && (st = check_free(out, opt->outdir, err)))
+      goto done;
+    goto done;
+  }
   if ((st = ensure_dir(opt->outdir, err))) goto done;
   {
     char tdir[SP_PLOT_PATH_MAX];
@@ -787,6 +799,21 @@ done:
     for (size_t k = 0; k < nsets; k++) free(sets[k].x);
   free(sets);
   free(row_lot);
+  return st;
+}
+
+sp_status sp_fitplot_draw(const sp_fitplot_plan *plan, const sp_table *t,
+                          const sp_plot_options *opt, sp_fitplot_charts *out, sp_error *err)
+{
+  return draw_charts(plan, t, opt, out, 0, err);
+}
+
+sp_status sp_fitplot_check(const sp_fitplot_plan *plan, const sp_table *t,
+                           const sp_plot_options *opt, sp_error *err)
+{
+  sp_fitplot_charts charts;
+  sp_status st = draw_charts(plan, t, opt, &charts, 1, err);
+  sp_fitplot_charts_free(&charts);
   return st;
 }
 

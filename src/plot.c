@@ -590,6 +590,92 @@ int sp_plot_gnuplot_found(const sp_plot_options *opt, char *buf, size_t n)
   return sp_spawn_find_program(name ? name : "gnuplot", buf, n);
 }
 
+char *sp_plot_count_text(unsigned long long v, char *buf, size_t n)
+{
+  char digits[24];
+  int nd = snprintf(digits, sizeof digits, "%llu", v);
+  if (n < SP_PLOT_COUNT_MAX) {
+    if (n) buf[0] = '\0';
+    return buf;
+  }
+  size_t o = 0;
+  for (int i = 0; i < nd; i++) {
+    /* A thin space before each group of three, from 10 000 up. */
+    if (v >= 10000 && i > 0 && (nd - i) % 3 == 0) {
+      memcpy(buf + o, "\xE2\x80\x89", 3);
+      o += 3;
+    }
+    buf[o++] = digits[i];
+  }
+  buf[o] = '\0';
+  return buf;
+}
+
+sp_status sp_plot_check(const sp_plot_options *opt, sp_error *err)
+{
+  if (!opt || !opt->outdir || !*opt->outdir)
+    return sp_fail(err, SP_EUSAGE, "charts: no output folder given");
+  char tdir[SP_PLOT_PATH_MAX];
+  sp_status st = sp_plot_template_dir(opt->template_dir, tdir, sizeof tdir, err);
+  if (st) return st;
+  /* The folder that must take a new entry: outdir itself, or, when it does
+   * not exist yet, the folder it would be made in. */
+  const char *dir = opt->outdir;
+  char parent[SP_PLOT_PATH_MAX];
+  struct stat sb;
+  if (stat(dir, &sb) == 0) {
+    if (!S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s: not a folder; charts need a folder", dir);
+      return sp_error_hint(err, "name a folder for the charts (it is made if missing)");
+    }
+  } else if (errno == ENOENT || errno == ENOTDIR) {
+    int w = snprintf(parent, sizeof parent, "%s", dir);
+    if (w < 0 || (size_t)w >= sizeof parent)
+      return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", dir);
+    size_t len = (size_t)w;
+    while (len > 1 && parent[len - 1] == '/')
+      parent[--len] = '\0';
+    char *slash = strrchr(parent, '/');
+    if (!slash)
+      snprintf(parent, sizeof parent, ".");
+    else if (slash == parent)
+      parent[1] = '\0';
+    else
+      *slash = '\0';
+    if (stat(parent, &sb) != 0) {
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder: %s does not exist", dir, parent);
+      return sp_error_hint(err, "the chart folder is made one level deep; create %s first", parent);
+    }
+    if (!S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder: %s is not a folder", dir, parent);
+      return sp_error_hint(err, "name a folder for the charts (it is made if missing)");
+    }
+    dir = parent;
+  } else {
+    return sp_fail(err, SP_EIO, "%s: cannot use it as the chart folder: %s", dir, strerror(errno));
+  }
+  /* Whether an entry can be made there is known only by making one (the
+   * permission bits do not tell for root, read-only mounts, /proc): a
+   * staging folder of the kind each chart uses, removed at once. */
+  char probe[SP_PLOT_PATH_MAX];
+  int w = snprintf(probe, sizeof probe, "%s/.sp-check.sp-%s", dir,
+                   "XX"
+                   "XX"
+                   "XX"); /* mkdtemp template */
+  if (w < 0 || (size_t)w >= sizeof probe)
+    return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", dir);
+  if (!mkdtemp(probe)) {
+    if (dir == parent)
+      sp_fail(err, SP_EIO, "%s: cannot create the chart folder in %s: %s", opt->outdir, dir,
+              strerror(errno));
+    else
+      sp_fail(err, SP_EIO, "%s: cannot write charts there: %s", dir, strerror(errno));
+    return sp_error_hint(err, "choose a folder you can write in");
+  }
+  rmdir(probe);
+  return SP_OK;
+}
+
 /* A folder name as a shell word for a hint the user may paste: left bare
  * when it is plainly safe, else single-quoted; control characters shown
  * as '?'. */
@@ -1070,7 +1156,8 @@ sp_status sp_plot_fit_histogram(const sp_plot_fit *spec, const sp_plot_options *
   ch_str(&c, "sp_xlabel", t);
   density_text(&spec->axis, t, sizeof t);
   ch_str(&c, "sp_ylabel", t);
-  snprintf(t, sizeof t, "data (n = %zu)", spec->n);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(t, sizeof t, "data (n = %s)", sp_plot_count_text(spec->n, cnt, sizeof cnt));
   ch_str(&c, "bars_title", t);
   ch_candidates(&c, spec);
   ch_bins(&c, &b);
@@ -1146,7 +1233,8 @@ sp_status sp_plot_fit_probability(const sp_plot_fit *spec, const sp_plot_options
   ch_str(&c, "sp_xlabel", lab);
   axis_text_pre("ordered ", &spec->axis, lab, sizeof lab);
   ch_str(&c, "sp_ylabel", lab);
-  snprintf(t, sizeof t, "data (n = %zu)", n);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(t, sizeof t, "data (n = %s)", sp_plot_count_text(n, cnt, sizeof cnt));
   ch_str(&c, "points_title", t);
   ch_str(&c, "line_title", "y = x (data as fitted)");
   int has_band = spec->band_level > 0;
@@ -1218,7 +1306,8 @@ sp_status sp_plot_fit_ecdf(const sp_plot_fit *spec, const sp_plot_options *opt,
   axis_text(&spec->axis, "value", t, sizeof t);
   ch_str(&c, "sp_xlabel", t);
   ch_str(&c, "sp_ylabel", "cumulative probability");
-  snprintf(t, sizeof t, "empirical (n = %zu)", n);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(t, sizeof t, "empirical (n = %s)", sp_plot_count_text(n, cnt, sizeof cnt));
   ch_str(&c, "steps_title", t);
   ch_candidates(&c, spec);
   ch_ecdf(&c, "empirical distribution function", xs, n, a, b);
@@ -1264,9 +1353,10 @@ sp_status sp_plot_fit_lots(const sp_plot_lots *spec, const sp_plot_options *opt,
   ch_array_begin(&c, "lot_title", spec->nlots);
   for (size_t k = 0; k < spec->nlots; k++) {
     char lab[SP_PLOT_LABEL_MAX + 32];
-    snprintf(lab, sizeof lab, "%s (n = %zu)",
+    char cnt[SP_PLOT_COUNT_MAX];
+    snprintf(lab, sizeof lab, "%s (n = %s)",
              spec->lots[k].label && *spec->lots[k].label ? spec->lots[k].label : "(no id)",
-             spec->lots[k].n);
+             sp_plot_count_text(spec->lots[k].n, cnt, sizeof cnt));
     ch_array_str(&c, k, lab);
   }
   ch_array_end(&c, spec->nlots, "''");
@@ -1354,7 +1444,9 @@ sp_status sp_plot_run_histogram(const sp_plot_run_hist *spec, const sp_plot_opti
   ch_str(&c, "sp_xlabel", t);
   density_text(&spec->axis, t, sizeof t);
   ch_str(&c, "sp_ylabel", t);
-  snprintf(t, sizeof t, "%s (n = %.0f)", spec->samples ? "samples" : "binned samples", b.total);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(t, sizeof t, "%s (n = %s)", spec->samples ? "samples" : "binned samples",
+           sp_plot_count_text((unsigned long long)b.total, cnt, sizeof cnt));
   ch_str(&c, "bars_title", t);
   ch_int(&c, "has_cov", has_cov);
   ch_num(&c, "cov_lo", has_cov ? cov->lo : 0.0);
@@ -1405,7 +1497,8 @@ sp_status sp_plot_run_exceedance(const sp_plot_exceedance *spec, const sp_plot_o
       }
     }
     free(xs);
-    snprintf(t, sizeof t, "empirical, n = %zu", n);
+    char cnt[SP_PLOT_COUNT_MAX];
+    snprintf(t, sizeof t, "empirical, n = %s", sp_plot_count_text(n, cnt, sizeof cnt));
   } else {
     if (!spec->values || !spec->exceedance || spec->npoints < 2)
       return sp_fail(err, SP_EUSAGE, "plot: give samples, or 2 or more values with their "
@@ -1515,7 +1608,7 @@ sp_status sp_plot_run_convergence(const sp_plot_convergence *spec, const sp_plot
   ch_str(&c, "sp_ylabel", t);
   ch_str(&c, "mean_title", "mean");
   ch_int(&c, "has_se", spec->mean_se != NULL);
-  ch_str(&c, "se_title", "mean +- 2 standard errors");
+  ch_str(&c, "se_title", "mean \u00b1 2 standard errors");
   ch_int(&c, "has_interval", spec->lo != NULL);
   if (spec->level > 0 && spec->level < 1)
     snprintf(t, sizeof t, "ends of the %g %% interval", 100 * spec->level);
@@ -1557,10 +1650,12 @@ sp_status sp_plot_run_scatter(const sp_plot_scatter *spec, const sp_plot_options
   ch_str(&c, "sp_xlabel", t);
   axis_text(&spec->yaxis, "output", t, sizeof t);
   ch_str(&c, "sp_ylabel", t);
+  char c1[SP_PLOT_COUNT_MAX], c2[SP_PLOT_COUNT_MAX];
   if (spec->of_total > spec->npoints)
-    snprintf(t, sizeof t, "%zu of %zu samples", spec->npoints, spec->of_total);
+    snprintf(t, sizeof t, "%s of %s samples", sp_plot_count_text(spec->npoints, c1, sizeof c1),
+             sp_plot_count_text(spec->of_total, c2, sizeof c2));
   else
-    snprintf(t, sizeof t, "%zu samples", spec->npoints);
+    snprintf(t, sizeof t, "%s samples", sp_plot_count_text(spec->npoints, c1, sizeof c1));
   ch_str(&c, "points_title", t);
   ch_limits(&c, spec->limits, spec->nlimits);
   ch_block(&c, "samples", "x y");

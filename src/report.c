@@ -420,46 +420,58 @@ static sp_status embed_svg(sp_strbuf *b, const char *path, unsigned fig, sp_erro
 
 /* ---- document ------------------------------------------------------------ */
 
+/* Longest table cell without blanks that is kept on one line (class w):
+ * a lot id, a number, a file name of a few folders; longer ones may
+ * break so that a table still fits the page. */
+#define WORD_MAX 32
+
 static const char *const CSS =
     ":root{--ink:#1f1f1f;--muted:#5a5a5a;--rule:#d4d4d4;--accent:#0072B2;--warn:#D55E00}\n"
     "html{font-family:\"DejaVu Sans\",\"Liberation Sans\",Arial,sans-serif;color:var(--ink);"
     "background:#fff}\n"
     "body{max-width:58rem;margin:2rem auto;padding:0 1.25rem;line-height:1.45;font-size:15px}\n"
-    "h1{font-size:1.6rem;font-weight:600;margin:0 0 .3rem}\n"
-    "h2{font-size:1.25rem;font-weight:600;margin:2.2rem 0 .6rem;padding-bottom:.2rem;"
+    "h1{font-size:1.6em;font-weight:600;margin:0 0 .3rem}\n"
+    "h2{font-size:1.25em;font-weight:600;margin:2.2rem 0 .6rem;padding-bottom:.2rem;"
     "border-bottom:1px solid var(--rule)}\n"
-    "h3{font-size:1.05rem;font-weight:600;margin:1.6rem 0 .5rem}\n"
+    "h3{font-size:1.05em;font-weight:600;margin:1.6rem 0 .5rem}\n"
     ".meta{color:var(--muted);margin:0 0 1rem}\n"
     ".caution{border-left:4px solid var(--warn);background:#fcefe6;padding:.65rem .9rem;"
     "margin:1rem 0 1.5rem}\n"
     ".caution{font-weight:500;color:#4a1f00}\n"
     ".note{border-left:4px solid var(--accent);background:#eaf3fa;padding:.5rem .85rem}\n"
-    "nav{font-size:.92rem}nav ol{list-style:none;margin:.2rem 0;padding-left:.2rem}"
+    "nav{font-size:.92em}nav ol{list-style:none;margin:.2rem 0;padding-left:.2rem}"
     "nav a{color:var(--accent)}\n"
-    "table{border-collapse:collapse;margin:.4rem 0 1.2rem;font-size:.9rem}\n"
+    "table{border-collapse:collapse;margin:.4rem 0 1.2rem;font-size:.9em}\n"
     "caption{caption-side:top;text-align:left;color:var(--muted);padding-bottom:.3rem}\n"
     "th,td{padding:.22rem .65rem;border-bottom:1px solid #e8e8e8;text-align:left;"
     "vertical-align:top}\n"
     "thead th{border-bottom:1.5px solid #8c8c8c;font-weight:600}\n"
     "th.r,td.r{text-align:right;font-variant-numeric:tabular-nums}\n"
+    "td.w{white-space:nowrap}\n"
     ".hash,pre,code{font-family:\"DejaVu Sans Mono\",\"Liberation Mono\",monospace}\n"
-    ".hash{font-size:.78rem;word-break:break-all}\n"
-    "pre{background:#f5f6f7;border:1px solid #e2e4e7;padding:.6rem .8rem;font-size:.84rem;"
+    /* 32ch: a SHA-256 (64 hex digits, monospace) breaks into two equal
+     * halves instead of leaving one digit on a line of its own. */
+    ".hash{font-size:.86em;word-break:break-all;width:32ch}\n"
+    "pre{background:#f5f6f7;border:1px solid #e2e4e7;padding:.6rem .8rem;font-size:.84em;"
     "white-space:pre-wrap;overflow-wrap:anywhere}\n"
     "dl.facts{display:grid;grid-template-columns:max-content 1fr;gap:.2rem 1.2rem;"
     "margin:.4rem 0 1.2rem}\n"
     "dl.facts dt{color:var(--muted)}dl.facts dd{margin:0;overflow-wrap:anywhere}\n"
     "figure{margin:1rem 0 1.6rem}\n"
     "figure svg.chart{display:block;width:100%;max-width:900px;height:auto}\n"
-    "figcaption{color:var(--muted);font-size:.9rem;margin-top:.3rem}\n"
+    "figcaption{color:var(--muted);font-size:.9em;margin-top:.3rem}\n"
     ".missing{border:1px dashed var(--rule);padding:1.2rem;color:var(--muted)}\n"
     "footer{margin-top:3rem;padding-top:.5rem;border-top:1px solid var(--rule);"
-    "color:var(--muted);font-size:.85rem}\n"
+    "color:var(--muted);font-size:.85em}\n"
     /* A4 is 210 mm wide, Letter 215.9 mm: 15 mm side margins leave 180 mm
      * and 186 mm, and a 900 x 600 chart scaled to that is 120 mm tall,
      * which fits either page (A4 263 mm, Letter 245 mm of height). */
     "@page{margin:16mm 15mm 18mm}\n"
+    /* Font sizes are in em, relative to the body's, so that the print size
+     * (10 pt) scales tables and code with the text and a wide table (the
+     * candidates of a fit) still fits the 180 mm. */
     "@media print{body{max-width:none;margin:0;padding:0;font-size:10pt}"
+    "th,td{padding:.18em .45em}"
     "h2,h3{break-after:avoid;page-break-after:avoid}"
     "figure,tr,pre,.caution,.note,dl.facts{break-inside:avoid;page-break-inside:avoid}"
     "thead{display:table-header-group}"
@@ -538,8 +550,16 @@ static sp_status put_table(doc *d, const sp_report_table *t)
   for (size_t r = 0; r < t->nrows; r++) {
     sp_strbuf_puts(&d->b, "<tr>");
     for (size_t c = 0; c < t->ncols; c++) {
-      sp_strbuf_puts(&d->b, t->align && t->align[c] == 'r' ? "<td class=\"r\">" : "<td>");
-      put_text(&d->b, t->cells[r * t->ncols + c]);
+      const char *cell = t->cells[r * t->ncols + c];
+      int right = t->align && t->align[c] == 'r';
+      /* A short word (a lot id "W24-117", a file name) is not broken at a
+       * hyphen or slash: it would read as two values. */
+      int word = cell && *cell && strlen(cell) <= WORD_MAX && !strpbrk(cell, " \t\n");
+      sp_strbuf_puts(&d->b, right && word ? "<td class=\"r w\">"
+                            : right       ? "<td class=\"r\">"
+                            : word        ? "<td class=\"w\">"
+                                          : "<td>");
+      put_text(&d->b, cell);
       sp_strbuf_puts(&d->b, "</td>");
     }
     sp_strbuf_puts(&d->b, "</tr>\n");

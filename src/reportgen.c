@@ -906,16 +906,22 @@ static double *num_array(const json_t *a, size_t *n)
   return v;
 }
 
-/* Repeats the run from the record into *out (the model at model_path). */
+/* Repeats the run from the record into *out (the model at model_path).
+ * check: for 'scatterprop plot', the options of the charts to draw,
+ * checked (sp_runplot_check) before the run is executed; NULL for the
+ * report (which draws into a fresh folder of its own). */
 static sp_status repeat_run(const json_t *root, const char *file, const char *model_path,
-                            int threads, sp_run **out, sp_run_options *ro, run_arrays *ar,
-                            sp_error *err)
+                            int threads, const sp_runplot_options *check, sp_run **out,
+                            sp_run_options *ro, run_arrays *ar, sp_error *err)
 {
   *out = NULL;
   const json_t *model = json_object_get(root, "model"), *o = json_object_get(root, "options");
   if (!readable(model_path)) {
     sp_fail(err, SP_EIO, "model %s of run record %s cannot be read: %s", model_path, file,
             strerror(errno));
+    if (check)
+      return sp_error_hint(err, "the model path is the one given to 'scatterprop propagate'; "
+                                "run 'scatterprop plot' from the folder it was run in");
     return sp_error_hint(err, "the model path is the one given to 'scatterprop propagate'; "
                               "make the report from the folder it was run in, or give "
                               "--plots DIR");
@@ -983,8 +989,13 @@ static sp_status repeat_run(const json_t *root, const char *file, const char *mo
     st = sp_fail(err, SP_ENOMEM, "out of memory");
   eo->threads = threads;
   eo->keep_samples = 1;
+  /* Charts that could not be drawn are found before the run, not after. */
+  if (st == SP_OK && check) st = sp_runplot_check(sp_run_model(run), check, err);
   if (st == SP_OK) st = sp_run_execute(run, ro, err);
-  if (st == SP_ENOMEM)
+  if (st == SP_ENOMEM && check)
+    sp_error_hint(err, "the charts need every sample of the run in memory; 'propagate --plots "
+                       "DIR' draws them while the run is made");
+  else if (st == SP_ENOMEM)
     sp_error_hint(err, "the report repeats the run keeping every sample for its charts; draw "
                        "them with 'propagate --plots DIR' and give the report --plots DIR");
   if (st != SP_OK) {
@@ -1201,7 +1212,8 @@ static char *params_text(pool *p, const sp_family *fam, const json_t *params)
   return pool_str(p, buf);
 }
 
-static void candidates_table(builder *b, const json_t *cands, const char *caption)
+static void candidates_table(builder *b, const json_t *cands, const char *chosen,
+                             const char *caption)
 {
   size_t nc = json_array_size(cands);
   static const char *const head[] = {"rank", "family", "parameters", "log L", "AICc",
@@ -1254,9 +1266,18 @@ static void candidates_table(builder *b, const json_t *cands, const char *captio
     const char *rel = !bound ? "" : strcmp(bound, "below") == 0 ? "<\u00a0"
                                   : strcmp(bound, "above") == 0 ? ">\u00a0" : "";
     double p = gnum(a2, "p");
-    set_cell(b, t, row, 7, isfinite(p) ? pool_fmt(&b->p, "%s%.3g", rel, p) : "-");
-    set_cell(b, t, row, 8, json_is_true(json_object_get(e, "rejected")) ? "rejected by A\u00b2"
-                                                                         : "");
+    /* Below 0.001 as "< 0.001", as 'scatterprop fit' prints it: a
+     * bootstrap p-value of 1/(B + 1) says only that no replicate reached
+     * the statistic, and three more digits would suggest a precision the
+     * estimate does not have. */
+    if (isfinite(p) && p < 0.001 && !rel[0])
+      set_cell(b, t, row, 7, "<\u00a00.001");
+    else
+      set_cell(b, t, row, 7, isfinite(p) ? pool_fmt(&b->p, "%s%.3g", rel, p) : "-");
+    const char *verdict = json_is_true(json_object_get(e, "rejected"))       ? "rejected by A\u00b2"
+                          : chosen && strcmp(gstr(e, "family"), chosen) == 0 ? "chosen"
+                                                                             : "";
+    set_cell(b, t, row, 8, verdict);
   }
   free(order);
 }
@@ -1284,9 +1305,10 @@ static sp_status section_fits(builder *b, const chart_env *env, const fitsrc *fi
                        : strcmp(sel, "bic") == 0 ? "BIC"
                        : strcmp(sel, "loglik") == 0 ? "log-likelihood"
                                                     : sel;
-    candidates_table(b, json_object_get(f->root, "candidates"),
-                     pool_fmt(&b->p, "%s: candidates ranked by %s (%zu values; A\u00b2 "
-                                     "rejection level %g).",
+    candidates_table(b, json_object_get(f->root, "candidates"), f->rec.family->name,
+                     pool_fmt(&b->p,
+                              "%s: candidates ranked by %s (%zu values; A\u00b2 "
+                              "rejection level %g).",
                               f->col->name, crit, f->n, gnum(o, "alpha")));
     const json_t *by = json_object_get(f->root, "by");
     if (json_is_object(by)) {
@@ -1732,6 +1754,140 @@ static sp_status build_report(builder *b, const json_t *root, const char *record
   return SP_OK;
 }
 
+/* ---- a run record and the files it names ------------------------------------ */
+
+typedef struct {
+  json_t *root;
+  char *model_path; /* the model where the replay module finds it */
+  char *model_dir;
+  fitsrc *fits; /* one entry per distinct fit record */
+  size_t nf;
+} runsrc;
+
+static void runsrc_clear(runsrc *s)
+{
+  free(s->model_path);
+  free(s->model_dir);
+  for (size_t k = 0; k < s->nf; k++)
+    fitsrc_clear(&s->fits[k]);
+  free(s->fits);
+  json_decref(s->root);
+  memset(s, 0, sizeof *s);
+}
+
+/* Reads and validates the run record (every field the report uses; the
+ * model text against its SHA-256). */
+static sp_status runsrc_load(runsrc *s, const char *run_record, sp_error *err)
+{
+  memset(s, 0, sizeof *s);
+  if (!run_record || !*run_record) return sp_fail(err, SP_EUSAGE, "no run record given");
+  if (!readable(run_record))
+    return sp_fail(err, SP_EIO, "run record %s cannot be read: %s", run_record, strerror(errno));
+  json_error_t je;
+  s->root = json_load_file(run_record, 0, &je);
+  if (!s->root) {
+    sp_fail_at(err, SP_EDATA, run_record, je.line, je.column, "run record: not JSON: %s",
+               je.text);
+    return sp_error_hint(err, "give the run.json that 'scatterprop propagate --out DIR' wrote");
+  }
+  if (!json_is_object(s->root))
+    return sp_fail(err, SP_EDATA, "run record %s: not a JSON object", run_record);
+  const json_t *fmt = json_object_get(s->root, "format");
+  if (json_is_string(fmt) && strcmp(json_string_value(fmt), SP_RECORD_FIT_FORMAT) == 0) {
+    sp_fail(err, SP_EDATA, "%s is a fit record, not a run record", run_record);
+    return sp_error_hint(err,
+                         "'scatterprop plot %s' draws the fit's charts; a report is made "
+                         "from the run.json that 'scatterprop propagate --out DIR' wrote",
+                         run_record);
+  }
+  checker c = {"run record", run_record, err, SP_OK};
+  sp_status st = check_run_record(&c, s->root);
+  if (st != SP_OK) return st;
+  const json_t *model = json_object_get(s->root, "model");
+  char h[SP_SHA256_HEX_LEN];
+  const char *text = gstr(model, "text");
+  sp_sha256_buffer(text, strlen(text), h);
+  if (strcmp(h, gstr(model, "sha256")) != 0)
+    return sp_fail(err, SP_EDATA,
+                   "run record %s: the model text has SHA-256 %s, the record "
+                   "says %s",
+                   run_record, h, gstr(model, "sha256"));
+  return SP_OK;
+}
+
+/* Finds the model and opens every fit record and data file the run record
+ * names, checking their SHA-256. */
+static sp_status runsrc_inputs(runsrc *s, const char *run_record, sp_error *err)
+{
+  /* The model where the replay module finds it (the recorded path, read
+   * relative to the folder the run was made in, or to the record's folder
+   * in an archive); the fit records are named relative to its folder. */
+  const json_t *model = json_object_get(s->root, "model");
+  int mexists = 0;
+  s->model_path = sp_replay_locate(run_record, s->root, gstr(model, "path"), &mexists);
+  s->model_dir = s->model_path ? sp_replay_dir_of(s->model_path) : NULL;
+  if (!s->model_path || !s->model_dir) return sp_fail(err, SP_ENOMEM, "out of memory");
+  const json_t *inputs = json_object_get(s->root, "inputs");
+  size_t ni = json_array_size(inputs);
+  s->fits = calloc(ni ? ni : 1, sizeof *s->fits);
+  if (!s->fits) return sp_fail(err, SP_ENOMEM, "out of memory");
+  sp_status st = SP_OK;
+  for (size_t i = 0; i < ni && st == SP_OK; i++) {
+    const json_t *in = json_array_get(inputs, i);
+    const json_t *fr = json_object_get(in, "fit_record");
+    if (!json_is_object(fr)) continue;
+    char *fp = sp_replay_join(s->model_dir, gstr(fr, "path"));
+    if (!fp) return sp_fail(err, SP_ENOMEM, "out of memory");
+    size_t k = 0;
+    while (k < s->nf && strcmp(s->fits[k].path, fp) != 0)
+      k++;
+    if (k < s->nf) {
+      size_t len = strlen(s->fits[k].inputs);
+      snprintf(s->fits[k].inputs + len, sizeof s->fits[k].inputs - len, ", %s", gstr(in, "name"));
+    } else {
+      st = open_fit(&s->fits[s->nf++], fr, fp, gstr(in, "name"), err);
+    }
+    free(fp);
+  }
+  return st;
+}
+
+/* Whether the report can be written at path, found before the run is
+ * repeated: not a folder, not an existing file unless overwrite, and its
+ * folder one in which a file can be made (tried with a file made and
+ * removed at once: permission bits do not tell for root or a read-only
+ * mount). */
+static sp_status check_outpath(const char *path, int overwrite, sp_error *err)
+{
+  struct stat sb;
+  if (stat(path, &sb) == 0) {
+    if (S_ISDIR(sb.st_mode)) {
+      sp_fail(err, SP_EIO, "%s is a folder; the report is one file", path);
+      return sp_error_hint(err, "give --out the report's file name, e.g. %s/report.html", path);
+    }
+    if (!overwrite) return sp_fail(err, SP_EIO, "%s exists; give --force to replace it", path);
+  }
+  char d[SP_PLOT_PATH_MAX], probe[SP_PLOT_PATH_MAX + 32];
+  dir_of(path, d, sizeof d);
+  if (stat(d, &sb) != 0 || !S_ISDIR(sb.st_mode)) {
+    sp_fail(err, SP_EIO, "%s: cannot write the report: folder %s does not exist", path, d);
+    return sp_error_hint(err, "create the folder first, or give --out another file");
+  }
+  /* mkstemp template: six X characters, spelled out to keep markers greppable. */
+  snprintf(probe, sizeof probe, "%s/.sp-report.%s", d,
+           "XX"
+           "XX"
+           "XX");
+  int fd = mkstemp(probe);
+  if (fd < 0) {
+    sp_fail(err, SP_EIO, "%s: cannot write the report in %s: %s", path, d, strerror(errno));
+    return sp_error_hint(err, "give --out a file in a folder you can write in");
+  }
+  close(fd);
+  unlink(probe);
+  return SP_OK;
+}
+
 sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options *opt_in,
                              sp_reportgen_result *res, sp_error *err)
 {
@@ -1739,78 +1895,26 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   sp_reportgen_options_init(&defaults);
   const sp_reportgen_options *opt = opt_in ? opt_in : &defaults;
   if (res) memset(res, 0, sizeof *res);
-  if (!run_record || !*run_record) return sp_fail(err, SP_EUSAGE, "report: no run record given");
-  if (!readable(run_record))
-    return sp_fail(err, SP_EIO, "run record %s cannot be read: %s", run_record, strerror(errno));
-  json_error_t je;
-  json_t *root = json_load_file(run_record, 0, &je);
-  if (!root) {
-    sp_fail_at(err, SP_EDATA, run_record, je.line, je.column, "run record: not JSON: %s",
-               je.text);
-    return sp_error_hint(err, "give the run.json that 'scatterprop propagate --out DIR' wrote");
+  runsrc src;
+  sp_status st = runsrc_load(&src, run_record, err);
+  if (st != SP_OK) {
+    runsrc_clear(&src);
+    return st;
   }
-  checker c = {"run record", run_record, err, SP_OK};
-  if (!json_is_object(root)) {
-    json_decref(root);
-    return sp_fail(err, SP_EDATA, "run record %s: not a JSON object", run_record);
-  }
-  sp_status st = check_run_record(&c, root);
-  const json_t *model = json_object_get(root, "model");
-  if (st == SP_OK) {
-    char h[SP_SHA256_HEX_LEN];
-    const char *text = gstr(model, "text");
-    sp_sha256_buffer(text, strlen(text), h);
-    if (strcmp(h, gstr(model, "sha256")) != 0)
-      st = sp_fail(err, SP_EDATA, "run record %s: the model text has SHA-256 %s, the record "
-                                  "says %s",
-                   run_record, h, gstr(model, "sha256"));
-  }
+  json_t *root = src.root;
   /* The report's path: given, or report.html beside the run record. */
   char outpath[SP_PLOT_PATH_MAX];
   char d[SP_PLOT_PATH_MAX];
   dir_of(run_record, d, sizeof d);
   int w = opt->out ? snprintf(outpath, sizeof outpath, "%s", opt->out)
                    : snprintf(outpath, sizeof outpath, "%s/report.html", d);
-  if (st == SP_OK && (w < 0 || (size_t)w >= sizeof outpath))
+  if (w < 0 || (size_t)w >= sizeof outpath)
     st = sp_fail(err, SP_ELIMIT, "report path too long (%d bytes)", w);
-  if (st == SP_OK && !opt->overwrite && access(outpath, F_OK) == 0) {
-    st = sp_fail(err, SP_EIO, "%s exists; give --force to replace it", outpath);
-  }
-
-  /* The model where the replay module finds it (the recorded path, read
-   * relative to the folder the run was made in, or to the record's folder
-   * in an archive); the fit records are named relative to its folder. */
-  int mexists = 0;
-  char *model_path = st == SP_OK ? sp_replay_locate(run_record, root, gstr(model, "path"),
-                                                    &mexists)
-                                 : NULL;
-  char *model_dir = model_path ? sp_replay_dir_of(model_path) : NULL;
-  if (st == SP_OK && (!model_path || !model_dir)) st = sp_fail(err, SP_ENOMEM, "out of memory");
-
-  /* Fit records and data, one entry per distinct record. */
-  const json_t *inputs = json_object_get(root, "inputs");
-  size_t ni = json_array_size(inputs), nf = 0;
-  fitsrc *fits = calloc(ni ? ni : 1, sizeof *fits);
-  if (!fits && st == SP_OK) st = sp_fail(err, SP_ENOMEM, "out of memory");
-  for (size_t i = 0; i < ni && st == SP_OK; i++) {
-    const json_t *in = json_array_get(inputs, i);
-    const json_t *fr = json_object_get(in, "fit_record");
-    if (!json_is_object(fr)) continue;
-    char *fp = sp_replay_join(model_dir, gstr(fr, "path"));
-    if (!fp) {
-      st = sp_fail(err, SP_ENOMEM, "out of memory");
-      break;
-    }
-    size_t k = 0;
-    while (k < nf && strcmp(fits[k].path, fp) != 0) k++;
-    if (k < nf) {
-      size_t len = strlen(fits[k].inputs);
-      snprintf(fits[k].inputs + len, sizeof fits[k].inputs - len, ", %s", gstr(in, "name"));
-    } else {
-      st = open_fit(&fits[nf++], fr, fp, gstr(in, "name"), err);
-    }
-    free(fp);
-  }
+  if (st == SP_OK) st = check_outpath(outpath, opt->overwrite, err);
+  if (st == SP_OK) st = runsrc_inputs(&src, run_record, err);
+  const char *model_path = src.model_path;
+  fitsrc *fits = src.fits;
+  size_t nf = src.nf;
 
   /* The run charts' source. */
   sp_run *run = NULL;
@@ -1818,7 +1922,7 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   run_arrays ar = {NULL, NULL, NULL};
   double tol = 0;
   if (st == SP_OK && !opt->plots_dir) {
-    st = repeat_run(root, run_record, model_path, opt->threads, &run, &ro, &ar, err);
+    st = repeat_run(root, run_record, model_path, opt->threads, NULL, &run, &ro, &ar, err);
     if (st == SP_OK) st = compare_with_record(root, run, &ro, run_record, &tol, err);
   }
   if (st == SP_OK && opt->plots_dir) st = check_plots_dir(root, opt->plots_dir, run_record, err);
@@ -1908,10 +2012,74 @@ sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options 
   free(ar.pct);
   free(ar.hr);
   free(ar.tol);
-  free(model_path);
-  free(model_dir);
-  for (size_t k = 0; k < nf; k++) fitsrc_clear(&fits[k]);
-  free(fits);
+  runsrc_clear(&src);
+  return st;
+}
+
+/* ---- records of either kind, and the charts of a run ------------------------- */
+
+sp_status sp_reportgen_record_kind(const char *path, sp_reportgen_kind *kind, sp_error *err)
+{
+  *kind = SP_REPORTGEN_UNKNOWN;
+  if (!path || !*path) return sp_fail(err, SP_EUSAGE, "no record given");
+  if (!readable(path))
+    return sp_fail(err, SP_EIO, "record %s cannot be read: %s", path, strerror(errno));
+  json_error_t je;
+  json_t *root = json_load_file(path, 0, &je);
+  const json_t *fmt = json_is_object(root) ? json_object_get(root, "format") : NULL;
+  if (json_is_string(fmt) && strcmp(json_string_value(fmt), SP_RECORD_FIT_FORMAT) == 0)
+    *kind = SP_REPORTGEN_FIT;
+  else if (json_is_string(fmt) && strcmp(json_string_value(fmt), SP_RECORD_RUN_FORMAT) == 0)
+    *kind = SP_REPORTGEN_RUN;
   json_decref(root);
+  return SP_OK;
+}
+
+/* outdir made (one level) when missing. */
+static sp_status make_outdir(const char *dir, sp_error *err)
+{
+  struct stat sb;
+  if (stat(dir, &sb) == 0)
+    return S_ISDIR(sb.st_mode)
+               ? SP_OK
+               : sp_fail(err, SP_EIO, "%s: not a folder; charts need a folder", dir);
+  if (mkdir(dir, 0777) != 0 && errno != EEXIST)
+    return sp_fail(err, SP_EIO, "%s: cannot create the chart folder: %s", dir, strerror(errno));
+  return SP_OK;
+}
+
+sp_status sp_reportgen_plot_run(const char *run_record, const sp_runplot_options *opt, int threads,
+                                sp_runplot_set *set, double *tolerance, sp_error *err)
+{
+  memset(set, 0, sizeof *set);
+  if (tolerance) *tolerance = 0;
+  if (!opt || !opt->plot.outdir || !*opt->plot.outdir)
+    return sp_fail(err, SP_EUSAGE, "plot: no output folder given");
+  runsrc src;
+  sp_status st = runsrc_load(&src, run_record, err);
+  /* The folder and templates are checked before the run is repeated. */
+  if (st == SP_OK) st = sp_plot_check(&opt->plot, err);
+  if (st == SP_OK) st = runsrc_inputs(&src, run_record, err);
+  sp_run *run = NULL;
+  sp_run_options ro;
+  run_arrays ar = {NULL, NULL, NULL};
+  double tol = 0;
+  if (st == SP_OK) {
+    st = repeat_run(src.root, run_record, src.model_path, threads, opt, &run, &ro, &ar, err);
+  }
+  if (st == SP_OK) {
+    st = compare_with_record(src.root, run, &ro, run_record, &tol, err);
+    if (st == SP_EDIFFERS)
+      sp_error_hint(err, "'scatterprop replay %s' lists every difference; no chart was drawn",
+                    run_record);
+  }
+  if (st == SP_OK) st = make_outdir(opt->plot.outdir, err);
+  if (st == SP_OK) st = sp_runplot_draw(run, opt, set, err);
+  if (st == SP_OK && tolerance) *tolerance = tol;
+  sp_run_free(run);
+  free(ar.pct);
+  free(ar.hr);
+  free(ar.tol);
+  runsrc_clear(&src);
   return st;
 }

@@ -5,6 +5,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "engine_internal.h"
 #include "scatterprop/stats.h"
@@ -239,8 +240,9 @@ static sp_status draw_hist(const out_ctx *c, const sp_plot_options *po, sp_runpl
   sp_plot_run_hist spec;
   memset(&spec, 0, sizeof spec);
   char title[SP_PLOT_LABEL_MAX];
-  snprintf(title, sizeof title, "%s: distribution of %llu samples", c->mo->name,
-           (unsigned long long)o->n);
+  char cnt[SP_PLOT_COUNT_MAX];
+  snprintf(title, sizeof title, "%s: distribution of %s samples", c->mo->name,
+           sp_plot_count_text((unsigned long long)o->n, cnt, sizeof cnt));
   spec.title = title;
   spec.axis = c->axis;
   spec.edges = edges;
@@ -289,10 +291,12 @@ static sp_status draw_exceed(const out_ctx *c, const sp_plot_options *po, sp_run
   sp_status st = sp_plot_run_exceedance(&spec, po, &ch->out, err);
   if (st == SP_OK) {
     ch->drawn = 1;
+    char cnt[SP_PLOT_COUNT_MAX];
     snprintf(ch->caption, sizeof ch->caption,
-             "%s: empirical probability of exceedance P(Y > y) of the %zu finite samples, "
+             "%s: empirical probability of exceedance P(Y > y) of the %s finite samples, "
              "logarithmic axis%s.",
-             c->mo->name, c->nfinite, c->nlim ? "; limits dashed" : "");
+             c->mo->name, sp_plot_count_text(c->nfinite, cnt, sizeof cnt),
+             c->nlim ? "; limits dashed" : "");
   }
   return st;
 }
@@ -395,11 +399,12 @@ static sp_status draw_bars(const out_ctx *c, const sp_plot_options *po, sp_runpl
   sp_status st = sp_plot_run_sensitivity(&spec, po, &ch->out, err);
   if (st == SP_OK) {
     ch->drawn = 1;
+    char cnt[SP_PLOT_COUNT_MAX];
     if (sobol)
       snprintf(ch->caption, sizeof ch->caption,
-               "%s: first-order (filled) and total-effect (outlined) Sobol' indices from %llu "
+               "%s: first-order (filled) and total-effect (outlined) Sobol' indices from %s "
                "base samples, largest at the top.",
-               c->mo->name, (unsigned long long)sob->base_samples);
+               c->mo->name, sp_plot_count_text(sob->base_samples, cnt, sizeof cnt));
     else
       snprintf(ch->caption, sizeof ch->caption,
                "%s: each input's share of the sum of squared Spearman rank correlations "
@@ -459,7 +464,7 @@ static sp_status draw_conv(const out_ctx *c, const sp_plot_options *po, sp_runpl
   if (st == SP_OK) {
     ch->drawn = 1;
     snprintf(ch->caption, sizeof ch->caption,
-             "%s: mean of the first N samples with +-2 standard errors (s/sqrt(N)) and the "
+             "%s: mean of the first N samples with \u00b12 standard errors (s/\u221aN) and the "
              "ends of the %g %% coverage interval of those samples, N = %d, %d, ... and the "
              "whole run.",
              c->mo->name, 100 * res->coverage, SP_RUNPLOT_CONV_FIRST, 2 * SP_RUNPLOT_CONV_FIRST);
@@ -515,8 +520,11 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
     } else {
       const sp_model_input *mi = sp_model_input_at(m, best);
       char title[SP_PLOT_LABEL_MAX];
-      snprintf(title, sizeof title, "%s against %s: a fresh subsample of %zu points, not the "
-                                    "run's samples", c->mo->name, mi->name, kept);
+      char cnt[SP_PLOT_COUNT_MAX];
+      snprintf(title, sizeof title,
+               "%s against %s: a fresh subsample of %s points, not the "
+               "run's samples",
+               c->mo->name, mi->name, sp_plot_count_text(kept, cnt, sizeof cnt));
       sp_plot_scatter spec;
       memset(&spec, 0, sizeof spec);
       spec.title = title;
@@ -532,10 +540,11 @@ static sp_status draw_scatter(const out_ctx *c, const sp_plot_options *po,
       if (st == SP_OK) {
         ch->drawn = 1;
         snprintf(ch->caption, sizeof ch->caption,
-                 "%s against its most influential input %s (largest rank share) on %zu "
+                 "%s against its most influential input %s (largest rank share) on %s "
                  "points drawn afresh with the run's seed on the streams of block 2^48 - 2, "
                  "none of the run's own samples%s.",
-                 c->mo->name, mi->name, kept, c->nlim ? "; limits dashed" : "");
+                 c->mo->name, mi->name, sp_plot_count_text(kept, cnt, sizeof cnt),
+                 c->nlim ? "; limits dashed" : "");
       }
     }
   }
@@ -560,15 +569,35 @@ static int plain_name(const char *s)
 
 static const char *dir_name(sp_engine_direction d) { return d == SP_ENGINE_BELOW ? "<" : ">"; }
 
-sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_runplot_set *set,
-                          sp_error *err)
+/* Unless overwrite, no file of any chart of m may exist in the folder. */
+static sp_status check_free(const sp_model *m, const sp_runplot_options *opt, sp_error *err)
 {
-  memset(set, 0, sizeof *set);
-  const sp_engine_result *res = r ? sp_run_result(r) : NULL;
-  if (!res) return sp_fail(err, SP_EUSAGE, "run charts: the run has not been executed");
-  if (!res->samples_kept)
-    return sp_fail(err, SP_EUSAGE, "run charts: the run kept no samples (execute it with "
-                                   "keep_samples on)");
+  if (opt->plot.overwrite) return SP_OK;
+  static const char *const ext[4] = {".dat", ".gp", ".png", ".svg"};
+  for (size_t j = 0; j < sp_model_output_count(m); j++) {
+    char name[SP_PLOT_STEM_MAX + 1];
+    sp_plot_stem(sp_model_output_at(m, j)->name, name, sizeof name);
+    for (int kind = 0; kind < SP_RUNPLOT_NKINDS; kind++) {
+      for (int k = 0; k < 4; k++) {
+        char p[SP_PLOT_PATH_MAX];
+        int w = snprintf(p, sizeof p, "%s/%s_%s_%s%s", opt->plot.outdir,
+                         opt->prefix ? opt->prefix : "run", name, kind_names[kind], ext[k]);
+        if (w < 0 || (size_t)w >= sizeof p)
+          return sp_fail(err, SP_ELIMIT, "%s: output folder path too long", opt->plot.outdir);
+        struct stat sb;
+        if (lstat(p, &sb) == 0) {
+          sp_fail(err, SP_EIO, "%s: file exists; refusing to overwrite it (no chart was drawn)", p);
+          return sp_error_hint(err, "give --force to replace the charts, or choose another "
+                                    "folder");
+        }
+      }
+    }
+  }
+  return SP_OK;
+}
+
+static sp_status check_options(const sp_runplot_options *opt, sp_error *err)
+{
   if (!opt) return sp_fail(err, SP_EUSAGE, "run charts: no options given");
   if (opt->prefix && !plain_name(opt->prefix))
     return sp_fail(err, SP_EUSAGE, "run charts: prefix '%s' is not a plain name "
@@ -577,7 +606,36 @@ sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_run
   if (opt->scatter_points > SP_PLOT_SCATTER_MAX)
     return sp_fail(err, SP_EUSAGE, "run charts: %zu scatter points asked; at most %d",
                    opt->scatter_points, SP_PLOT_SCATTER_MAX);
+  return SP_OK;
+}
+
+sp_status sp_runplot_check(const sp_model *m, const sp_runplot_options *opt, sp_error *err)
+{
+  if (!m) return sp_fail(err, SP_EUSAGE, "run charts: no model given");
+  sp_status st = check_options(opt, err);
+  if (st == SP_OK) st = sp_plot_check(&opt->plot, err);
+  /* A folder that does not exist yet holds no files. */
+  struct stat sb;
+  if (st == SP_OK && stat(opt->plot.outdir, &sb) == 0) st = check_free(m, opt, err);
+  return st;
+}
+
+sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_runplot_set *set,
+                          sp_error *err)
+{
+  memset(set, 0, sizeof *set);
+  const sp_engine_result *res = r ? sp_run_result(r) : NULL;
+  if (!res) return sp_fail(err, SP_EUSAGE, "run charts: the run has not been executed");
+  if (!res->samples_kept)
+    return sp_fail(err, SP_EUSAGE,
+                   "run charts: the run kept no samples (execute it with "
+                   "keep_samples on)");
+  sp_status cs = check_options(opt, err);
+  if (cs != SP_OK) return cs;
   const sp_model *m = sp_run_model(r);
+  /* Every chart's files are checked first: nothing is drawn when one is in
+   * the way. */
+  if ((cs = check_free(m, opt, err)) != SP_OK) return cs;
   size_t no = (size_t)res->noutputs;
   set->charts = calloc(no * SP_RUNPLOT_NKINDS + 1, sizeof *set->charts);
   size_t nl = sp_model_limit_count(m);

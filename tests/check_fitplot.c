@@ -953,7 +953,7 @@ START_TEST(test_cli_plot_errors)
   ck_assert_int_eq(cli("fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec), 0);
 
   ck_assert_int_eq(cli("plot"), 2);
-  ASSERT_HAS(err_text, "no fit record given");
+  ASSERT_HAS(err_text, "no fit or run record given");
   ck_assert_int_eq(cli("plot '%s' --bogus", rec), 2);
   ASSERT_HAS(err_text, "unknown option '--bogus'");
   ck_assert_int_eq(cli("plot --help"), 0);
@@ -998,6 +998,43 @@ START_TEST(test_cli_plot_errors)
   ASSERT_HAS(err_text, "the file is not the one fitted");
   snprintf(badrec, sizeof badrec, "%s/x", dir);
   ck_assert(!exists(badrec));
+
+  /* A chart folder that cannot be used is found before the fit: exit 6,
+   * and no fit record is written. */
+  char rec2[DIR_MAX], file[DIR_MAX];
+  snprintf(rec2, sizeof rec2, "%s/fit2.json", dir);
+  snprintf(file, sizeof file, "%s/afile", dir);
+  write_file(file, "x\n");
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s/sub'", rec, rec2, file),
+      6);
+  ASSERT_HAS(err_text, "afile/sub: cannot create the chart folder");
+  ASSERT_HAS(err_text, "is not a folder");
+  ck_assert(!exists(rec2));
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s'", rec, rec2, file), 6);
+  ASSERT_HAS(err_text, "afile: not a folder");
+  ck_assert(!exists(rec2));
+  /* Charts in the way: found before the record is written. */
+  char charts[DIR_MAX], chart[DIR_MAX + 32];
+  snprintf(charts, sizeof charts, "%s/charts", dir);
+  ck_assert_int_eq(mkdir(charts, 0755), 0);
+  snprintf(chart, sizeof chart, "%s/fit_wire_d_ecdf.svg", charts);
+  write_file(chart, "x\n");
+  ck_assert_int_eq(
+      cli("fit '%s' --column wire_d --pvalues none --out '%s' --plots '%s'", csv, rec2, charts), 6);
+  ASSERT_HAS(err_text, "fit_wire_d_ecdf.svg: file exists");
+  ck_assert(!exists(rec2));
+  snprintf(chart, sizeof chart, "%s/fit_wire_d_hist.dat", charts);
+  ck_assert(!exists(chart));
+  /* An existing record: refused before the fit (with --force replaced). */
+  write_file(rec2, "mine\n");
+  ck_assert_int_eq(cli("fit '%s' --column wire_d --pvalues none --out '%s'", csv, rec2), 6);
+  ASSERT_HAS(err_text, "fit2.json: file exists; refusing to overwrite it");
+  ASSERT_LACKS(out_text, "rank");
+  char *mine = slurp(rec2);
+  ck_assert_str_eq(mine, "mine\n");
+  free(mine);
   rm_tree(dir);
 }
 END_TEST

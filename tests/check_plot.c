@@ -149,6 +149,9 @@ static void assert_rendered(const sp_plot_output *o)
   char *svg = slurp(o->svg);
   ASSERT_HAS(svg, "<svg");
   ASSERT_HAS(svg, "</svg>");
+  /* The 11 pt text scaled by 4/3 (style.gp's sp_svg_fontscale): the same
+   * size as in the PNG, where pngcairo draws points at 96 px per inch. */
+  ASSERT_HAS(svg, "font-size=\"14.67\"");
   free(svg);
   char *gp = slurp(o->script);
   ck_assert(strncmp(gp, "# Made by scatterprop", 21) == 0);
@@ -319,6 +322,14 @@ START_TEST(test_every_template_renders)
   opts(&o, dir, "run_tau_exceed");
   ck_assert_msg(sp_plot_run_exceedance(&ex, &o, &out, &err) == SP_OK, "%s", err.msg);
   assert_rendered(&out);
+  /* The log axis in one notation: 1, 10^-1, 10^-2, 10^-3 (n = 2000 reaches
+   * 1/2000), never gnuplot's mix of 0.001 and 1e-04. */
+  char *svg = slurp(out.svg);
+  ASSERT_HAS(svg, ">10\xE2\x81\xBB\xC2\xB9<"); /* 10⁻¹ */
+  ASSERT_HAS(svg, ">10\xE2\x81\xBB\xC2\xB3<"); /* 10⁻³ */
+  ASSERT_LACKS(svg, ">0.001<");
+  ASSERT_LACKS(svg, "e-0");
+  free(svg);
 
   const char *names[3] = {"wire_d", "Dm", "G"};
   double share[3] = {0.62, 0.25, 0.09}, total[3] = {0.64, 0.27, 0.10};
@@ -328,6 +339,12 @@ START_TEST(test_every_template_renders)
   opts(&o, dir, "run_tau_sens");
   ck_assert_msg(sp_plot_run_sensitivity(&se, &o, &out, &err) == SP_OK, "%s", err.msg);
   assert_rendered(&out);
+  /* The value beside each bar is set off by an offset, not a leading
+   * blank, which SVG text would collapse (the label would touch the bar). */
+  svg = slurp(out.svg);
+  ASSERT_HAS(svg, ">62.0 %<");
+  ASSERT_LACKS(svg, "> 62.0 %<");
+  free(svg);
 
   double nn[6] = {1e3, 2e3, 4e3, 8e3, 1.6e4, 3.2e4};
   double mean[6] = {541, 539.5, 540.2, 540.1, 539.9, 540.0};
@@ -891,6 +908,61 @@ START_TEST(test_overwrite)
 }
 END_TEST
 
+START_TEST(test_check_before_work)
+{
+  char dir[64], sub[128], file[128];
+  make_tmpdir(dir, sizeof dir);
+  sp_plot_options o;
+  sp_error err;
+  /* An existing folder, and one that can be made in it: ready, and the
+   * check leaves nothing behind (not even the missing folder). */
+  opts(&o, dir, "x");
+  ck_assert_msg(sp_plot_check(&o, &err) == SP_OK, "%s", err.msg);
+  snprintf(sub, sizeof sub, "%s/charts", dir);
+  o.outdir = sub;
+  ck_assert_msg(sp_plot_check(&o, &err) == SP_OK, "%s", err.msg);
+  ck_assert_int_eq(count_entries(dir), 0);
+  /* A file where the folder should be, or in its path. */
+  snprintf(file, sizeof file, "%s/afile", dir);
+  write_file(file, "x\n");
+  o.outdir = file;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "afile: not a folder");
+  snprintf(sub, sizeof sub, "%s/afile/charts", dir);
+  o.outdir = sub;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "afile is not a folder");
+  /* A parent that does not exist: the folder is made one level deep. */
+  snprintf(sub, sizeof sub, "%s/no/charts", dir);
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/no does not exist");
+  /* A folder nothing can be made in, even by root: /proc. */
+  o.outdir = "/proc";
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/proc: cannot write charts there");
+  o.outdir = "/proc/sp-charts";
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "/proc/sp-charts: cannot create the chart folder in /proc");
+  /* No templates: found before any work too. */
+  const char *env = getenv("SCATTERPROP_PLOTS");
+  char *saved = env ? strdup(env) : NULL;
+  setenv("SCATTERPROP_PLOTS", dir, 1);
+  o.outdir = dir;
+  o.template_dir = dir;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EIO);
+  ASSERT_HAS(err.msg, "gnuplot templates not found");
+  if (saved)
+    setenv("SCATTERPROP_PLOTS", saved, 1);
+  else
+    unsetenv("SCATTERPROP_PLOTS");
+  free(saved);
+  o.outdir = NULL;
+  ck_assert_int_eq(sp_plot_check(&o, &err), SP_EUSAGE);
+  ck_assert_int_eq(count_entries(dir), 1);
+  rm_tree(dir);
+}
+END_TEST
+
 START_TEST(test_bad_specs)
 {
   char dir[64];
@@ -1021,6 +1093,7 @@ static Suite *plot_suite(void)
   tcase_add_test(t, test_unknown_placeholder);
   tcase_add_test(t, test_gnuplot_timeout);
   tcase_add_test(t, test_overwrite);
+  tcase_add_test(t, test_check_before_work);
   tcase_add_test(t, test_gnuplot_stand_ins);
   tcase_add_test(t, test_bad_specs);
   suite_add_tcase(s, t);

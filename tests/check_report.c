@@ -159,6 +159,52 @@ START_TEST(test_caution_and_provenance)
 }
 END_TEST
 
+START_TEST(test_print_layout)
+{
+  /* A table of short words (kept on one line) and long texts (free to
+   * break), as a fit's candidates table mixes them. */
+  const char *head[3] = {"lot", "note", "n"};
+  const char *cells[6] = {"W24-117", "lowest AICc (-483.8) of the 7 candidates",
+                          "61",      "a-file-name-that-is-far-too-long-to-keep-whole",
+                          "",        "1234567"};
+  sp_report_table t = {
+      .caption = "lots", .ncols = 3, .nrows = 2, .head = head, .align = "llr", .cells = cells};
+  sp_report_block b[1] = {{.kind = SP_REPORT_TABLE, .table = &t}};
+  sp_report_section s[1] = {{"Fits", 1, b, 1}};
+  sp_report r = {.title = "t", .sections = s, .nsections = 1};
+  sp_error err;
+  char *html = sp_report_html(&r, NULL, &err);
+  ck_assert_msg(html != NULL, "%s", err.msg);
+  ASSERT_HAS(html, "<td class=\"w\">W24-117</td>");
+  ASSERT_HAS(html, "<td>lowest AICc (-483.8) of the 7 candidates</td>");
+  ASSERT_HAS(html, "<td class=\"r w\">61</td>");
+  ASSERT_HAS(html, "<td>a-file-name-that-is-far-too-long-to-keep-whole</td>");
+  ASSERT_HAS(html, "<td></td>");
+  ASSERT_HAS(html, "td.w{white-space:nowrap}");
+  /* A SHA-256 breaks into two halves of 32 digits. */
+  ASSERT_HAS(html, "width:32ch");
+  /* Print: A4 and Letter through the margins alone (no page size forced),
+   * the body at 10 pt, and every font size relative to it (em, never
+   * rem), so tables and code shrink with the text on paper. */
+  ASSERT_HAS(html, "@page{margin:16mm 15mm 18mm}");
+  ASSERT_LACKS(html, "size:A4");
+  ASSERT_LACKS(html, "size:letter");
+  ASSERT_HAS(html, "@media print{body{max-width:none;margin:0;padding:0;font-size:10pt}");
+  const char *style = strstr(html, "<style>");
+  ck_assert_ptr_nonnull(style);
+  const char *end = strstr(style, "</style>");
+  ck_assert_ptr_nonnull(end);
+  for (const char *p = strstr(style, "font-size:"); p && p < end; p = strstr(p + 1, "font-size:")) {
+    const char *semi = p + strcspn(p, ";}");
+    ck_assert_msg(!(semi - p > 3 && strncmp(semi - 3, "rem", 3) == 0), "a font size in rem: %.30s",
+                  p);
+  }
+  ASSERT_HAS(html, "figure,tr,pre,.caution,.note,dl.facts{break-inside:avoid");
+  ASSERT_HAS(html, "thead{display:table-header-group}");
+  free(html);
+}
+END_TEST
+
 /* ---- SVG ------------------------------------------------------------------ */
 
 START_TEST(test_gnuplot_svg_embedded)
@@ -391,6 +437,7 @@ static Suite *report_suite(void)
   tcase_add_test(t, test_hostile_text_escaped);
   tcase_add_test(t, test_text_characters);
   tcase_add_test(t, test_caution_and_provenance);
+  tcase_add_test(t, test_print_layout);
   suite_add_tcase(s, t);
   t = tcase_create("svg");
   tcase_set_timeout(t, 60);

@@ -320,7 +320,8 @@ START_TEST(test_bad_records)
   write_file(path_in("bad.json"), "{\"format\": ");
   ck_assert_int_eq(sp_reportgen_write(path_in("bad.json"), &o, NULL, &err), SP_EDATA);
   ck_assert_int_eq(sp_reportgen_write(path_in("fit.json"), &o, NULL, &err), SP_EDATA);
-  ASSERT_HAS(err.msg, "scatterprop-fit");
+  ASSERT_HAS(err.msg, "is a fit record, not a run record");
+  ASSERT_HAS(err.hint, "'scatterprop plot ");
   /* Each case edits the original record. */
   char *orig = slurp(path_in("run/run.json"));
   json_t *r = load_record();
@@ -476,6 +477,281 @@ START_TEST(test_command)
 }
 END_TEST
 
+/* Whether two files hold the same bytes. */
+static int same_file(const char *a, const char *b)
+{
+  size_t na = 0, nb = 0;
+  char *x = slurp_len(a, &na), *y = slurp_len(b, &nb);
+  int same = x && y && na == nb && memcmp(x, y, na) == 0;
+  free(x);
+  free(y);
+  return same;
+}
+
+START_TEST(test_plot_run_record)
+{
+  /* The run's charts drawn while it ran ... */
+  ck_assert_int_eq(cli("propagate m.spm --samples 20000 --seed 777 --out run2 --plots p1"), 0);
+  /* ... and again from its record alone: the run is repeated and the charts
+   * are the same data and scripts, byte for byte. */
+  ck_assert_msg(cli("plot run2/run.json --out p2 --threads 1") == 0, "%s", err_text);
+  ASSERT_HAS(out_text, "run repeated from the record; every recorded figure reproduced bit for "
+                       "bit");
+  ASSERT_HAS(out_text, "charts: 5 drawn into p2/");
+  static const char *const kinds[] = {"hist", "exceed", "sens", "conv", "scatter"};
+  for (size_t k = 0; k < 5; k++) {
+    for (int e = 0; e < 2; e++) {
+      char rel1[64], rel2[64];
+      snprintf(rel1, sizeof rel1, "p1/run_y_%s.%s", kinds[k], e ? "gp" : "dat");
+      snprintf(rel2, sizeof rel2, "p2/run_y_%s.%s", kinds[k], e ? "gp" : "dat");
+      ck_assert_msg(same_file(path_in(rel1), path_in(rel2)), "%s and %s differ", rel1, rel2);
+    }
+  }
+  /* Without gnuplot: the data and scripts, and one line on how to render
+   * them. */
+  ck_assert_msg(sh("PATH=/nonexistent " SP " plot run2/run.json --out p5") == 0, "%s", err_text);
+  ASSERT_HAS(out_text, "charts: 5 drawn into p5/ (0 rendered to PNG and SVG)");
+  ASSERT_HAS(out_text, "hint: gnuplot not found; to render the chart: cd p5 && gnuplot "
+                       "run_y_hist.gp (and likewise for the other 4 scripts)");
+  ck_assert_int_eq(access(path_in("p5/run_y_conv.gp"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("p5/run_y_conv.png"), F_OK), 0);
+  /* Charts in the way: nothing drawn, exit 6, before the run is repeated;
+   * --force replaces them. */
+  ck_assert_int_eq(cli("plot run2/run.json --out p2"), 6);
+  ASSERT_HAS(err_text, "p2/run_y_hist.dat: file exists");
+  ASSERT_HAS(err_text, "--force");
+  ck_assert_int_eq(cli("plot run2/run.json --out p2 --force"), 0);
+  /* A folder that cannot be made: exit 6, naming it. */
+  write_file(path_in("afile"), "x\n");
+  ck_assert_int_eq(cli("plot run2/run.json --out afile/charts"), 6);
+  ASSERT_HAS(err_text, "afile/charts: cannot create the chart folder");
+  /* A record whose figures the run does not reproduce: exit 1, no chart. */
+  json_error_t je;
+  json_t *r = json_load_file(path_in("run2/run.json"), 0, &je);
+  ck_assert_ptr_nonnull(r);
+  json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
+  json_object_set_new(y, "mean", json_real(json_number_value(json_object_get(y, "mean")) * 1.001));
+  ck_assert_int_eq(json_dump_file(r, path_in("run2/run.json"), JSON_REAL_PRECISION(17)), 0);
+  json_decref(r);
+  ck_assert_int_eq(cli("plot run2/run.json --out p3"), 1);
+  ASSERT_HAS(err_text, "results.outputs[0].mean");
+  ASSERT_HAS(err_text, "no chart was drawn");
+  ck_assert_int_ne(access(path_in("p3"), F_OK), 0);
+}
+END_TEST
+
+START_TEST(test_plot_and_report_on_the_wrong_file)
+{
+  /* Not a record at all: exit 3, the fit record reader's message (the
+   * field or the JSON position) and a hint naming both kinds. */
+  write_file(path_in("x.json"), "{\"a\": 1}\n");
+  ck_assert_int_eq(cli("plot x.json"), 3);
+  ASSERT_HAS(err_text, "x.json: field 'format' is missing");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  ASSERT_HAS(err_text, "or a run record");
+  write_file(path_in("bad.json"), "{\"format\": ");
+  ck_assert_int_eq(cli("plot bad.json"), 3);
+  ASSERT_HAS(err_text, "bad.json:1:");
+  ASSERT_HAS(err_text, "not valid JSON");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  write_file(path_in("other.json"), "{\"format\": \"someone-else\", \"version\": 1}\n");
+  ck_assert_int_eq(cli("plot other.json"), 3);
+  ASSERT_HAS(err_text, "someone-else");
+  ASSERT_HAS(err_text, "hint: give a fit record");
+  ck_assert_int_eq(cli("plot missing.json"), 6);
+  ASSERT_HAS(err_text, "missing.json");
+  ck_assert_int_eq(access(path_in("charts"), F_OK), -1);
+  /* The kind of each record. */
+  sp_reportgen_kind kind;
+  sp_error err;
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("fit.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_FIT);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("run/run.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_RUN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("other.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_UNKNOWN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("bad.json"), &kind, &err), SP_OK);
+  ck_assert_int_eq(kind, SP_REPORTGEN_UNKNOWN);
+  ck_assert_int_eq(sp_reportgen_record_kind(path_in("missing.json"), &kind, &err), SP_EIO);
+  /* Options of the other kind of record: usage errors. */
+  ck_assert_int_eq(cli("plot fit.json --threads 2"), 2);
+  ck_assert_int_eq(cli("plot run/run.json --data d.csv"), 2);
+  /* A report of a fit record: exit 3, and the hint says what to do. */
+  ck_assert_int_eq(cli("report fit.json"), 3);
+  ASSERT_HAS(err_text, "fit.json is a fit record, not a run record");
+  ASSERT_HAS(err_text, "'scatterprop plot fit.json'");
+  ck_assert_int_ne(access(path_in("report.html"), F_OK), 0);
+  /* An existing report is kept without --force, byte for byte. */
+  write_file(path_in("kept.html"), "mine\n");
+  ck_assert_int_eq(cli("report run/run.json --out kept.html"), 6);
+  ASSERT_HAS(err_text, "kept.html exists");
+  char *kept = slurp(path_in("kept.html"));
+  ck_assert_str_eq(kept, "mine\n");
+  free(kept);
+  /* A folder given as the report, or a report in a folder that does not
+   * exist or cannot be written: found before the run is repeated. */
+  ck_assert_int_eq(mkdir(path_in("adir"), 0755), 0);
+  ck_assert_int_eq(cli("report run/run.json --out adir --force"), 6);
+  ASSERT_HAS(err_text, "adir is a folder; the report is one file");
+  ck_assert_int_eq(cli("report run/run.json --out nodir/r.html"), 6);
+  ASSERT_HAS(err_text, "folder nodir does not exist");
+  ck_assert_int_eq(cli("report run/run.json --out /proc/r.html"), 6);
+  ASSERT_HAS(err_text, "cannot write the report in /proc");
+  ASSERT_LACKS(out_text, "repeated run");
+}
+END_TEST
+
+START_TEST(test_propagate_plots_checked_before_the_run)
+{
+  /* Charts in the way, or a chart folder that cannot be made, are found
+   * before the run: exit 6 and no run record. */
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run3 --plots p4"), 0);
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots p4"), 6);
+  ASSERT_HAS(err_text, "p4/run_y_hist.dat: file exists");
+  ck_assert_int_ne(access(path_in("run4"), F_OK), 0);
+  write_file(path_in("afile"), "x\n");
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots afile"), 6);
+  ASSERT_HAS(err_text, "afile: not a folder");
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run4 --plots afile/sub"), 6);
+  ASSERT_HAS(err_text, "afile/sub: cannot create the chart folder");
+  ck_assert_int_ne(access(path_in("run4"), F_OK), 0);
+}
+END_TEST
+
+/* s as one word for sh(): single-quoted, each ' as '\'' (the test's own
+ * shell must not run the hostile text either; if it did, the markers
+ * below would show it). */
+static const char *shq(const char *s)
+{
+  static char buf[4][2048];
+  static int k;
+  k = (k + 1) % 4;
+  size_t n = 0;
+  buf[k][n++] = '\'';
+  for (; *s && n < sizeof buf[k] - 6; s++) {
+    if (*s == '\'') {
+      memcpy(buf[k] + n, "'\\''", 4);
+      n += 4;
+    } else {
+      buf[k][n++] = *s;
+    }
+  }
+  buf[k][n++] = '\'';
+  buf[k][n] = '\0';
+  return buf[k];
+}
+
+/* Whether a marker (a file named pwned_*, as the commands in the hostile
+ * texts below would name it) exists below path.  Chart stems made from
+ * those texts start with fit_ or run_. */
+static int marker_below(const char *path)
+{
+  DIR *d = opendir(path);
+  if (!d) return 0;
+  int found = 0;
+  struct dirent *e;
+  while (!found && (e = readdir(d)) != NULL) {
+    if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0) continue;
+    if (strncmp(e->d_name, "pwned_", 6) == 0) found = 1;
+    char sub[2048];
+    snprintf(sub, sizeof sub, "%s/%s", path, e->d_name);
+    struct stat sb;
+    if (!found && lstat(sub, &sb) == 0 && S_ISDIR(sb.st_mode)) found = marker_below(sub);
+  }
+  closedir(d);
+  return found;
+}
+
+START_TEST(test_hostile_files_end_to_end)
+{
+  /* Every text a user's files can carry, trying gnuplot's back-quotes and
+   * system() (and a shell's $( )): the data file's name, its metadata, the
+   * column header, the lot ids (one with a newline), the fit record's
+   * name, the model's file name.  Markers are absolute paths in the test
+   * folder, so a command run in gnuplot's staging folder (removed after
+   * each chart) would still leave its mark. */
+  char mk[8][512];
+  static const char *const tag[8] = {"meta1", "meta2", "head1", "head2",
+                                     "lot1",  "lot2",  "lot3",  "lot4"};
+  for (int i = 0; i < 8; i++)
+    snprintf(mk[i], sizeof mk[i], "%s/pwned_%s", dir, tag[i]);
+  const char *csv = "$(touch pwned_f)`touch pwned_g`.csv";
+  FILE *fp = fopen(path_in(csv), "wb");
+  ck_assert_ptr_nonnull(fp);
+  fprintf(fp, "# gauge: `touch %s` system('touch %s') \"quoted\" 'single'\n", mk[0], mk[1]);
+  char column[1200];
+  snprintf(column, sizeof column, "`touch %s` system(\"touch %s\") x", mk[2], mk[3]);
+  fprintf(fp, "lot,\"`touch %s` system(\"\"touch %s\"\") x [mm]\"\n", mk[2], mk[3]);
+  for (int i = 0; i < 40; i++) {
+    int k = (i * 17) % 40;
+    double x = 10 + 0.2 * gsl_cdf_ugaussian_Pinv((k + 0.5) / 40);
+    if (i < 20)
+      fprintf(fp, "\"A`touch %s`$(touch %s)\",%.4f\n", mk[4], mk[5], x);
+    else
+      fprintf(fp, "\"B\nsystem('touch %s') @x %s\",%.4f\n", mk[6], mk[7], x);
+  }
+  fclose(fp);
+  const char *rec = "`touch pwned_r`.json";
+  const char *model = "$(touch pwned_m).spm";
+  char mtext[512];
+  snprintf(mtext, sizeof mtext,
+           "input a [mm] ~ fit(\"%s\")\n"
+           "input b [mm] ~ uniform(min=0, max=1)\n"
+           "output y [mm] = a + 2*b\n"
+           "limit y < 11.5 [mm]\n",
+           rec);
+  write_file(path_in(model), mtext);
+
+  ck_assert_msg(sh(SP " fit %s --column %s --by lot --families normal,lognormal --pvalues none "
+                      "--out %s --plots fc",
+                   shq(csv), shq(column), shq(rec)) == 0,
+                "fit: %s", err_text);
+  ASSERT_HAS(out_text, "charts in fc: 10 drawn (.png .svg .gp .dat each)");
+  ck_assert_msg(sh(SP " plot %s --out fc2", shq(rec)) == 0, "plot: %s", err_text);
+  ck_assert_msg(sh(SP " propagate %s --samples 20000 --seed 3 --out run5 --plots rc", shq(model)) ==
+                    0,
+                "propagate: %s", err_text);
+  ASSERT_HAS(out_text, "charts: 5 drawn into rc/ (5 rendered to PNG and SVG)");
+  ck_assert_msg(cli("plot run5/run.json --out rc2") == 0, "plot run: %s", err_text);
+  ck_assert_msg(cli("report run5/run.json") == 0, "report: %s", err_text);
+  ASSERT_HAS(out_text, "9 figures, 9 drawn");
+
+  /* Nothing ran: no marker anywhere. */
+  for (int i = 0; i < 8; i++)
+    ck_assert_msg(access(mk[i], F_OK) != 0, "%s was created: text from a file ran", mk[i]);
+  ck_assert_msg(!marker_below(dir), "a pwned_* file was created below %s", dir);
+  /* The scripts hold the texts neutralised: no back-quote, no system( and
+   * no @ anywhere outside the template's own comments. */
+  DIR *d = opendir(path_in("fc"));
+  ck_assert_ptr_nonnull(d);
+  struct dirent *e;
+  size_t scripts = 0;
+  while ((e = readdir(d)) != NULL) {
+    size_t len = strlen(e->d_name);
+    if (len < 3 || strcmp(e->d_name + len - 3, ".gp") != 0) continue;
+    char rel[600];
+    snprintf(rel, sizeof rel, "fc/%s", e->d_name);
+    char *gp = slurp(path_in(rel));
+    ck_assert_msg(!strchr(gp, '`'), "%s holds a back-quote", rel);
+    ASSERT_LACKS(gp, "system(");
+    ASSERT_LACKS(gp, "$(");
+    ASSERT_HAS(gp, "?touch ");
+    free(gp);
+    scripts++;
+  }
+  closedir(d);
+  ck_assert_uint_eq(scripts, 10);
+  /* The report shows them as text. */
+  char *html = slurp(path_in("run5/report.html"));
+  ASSERT_HAS(html, "$(touch pwned_m).spm");
+  ASSERT_HAS(html, "`touch pwned_g`.csv");
+  ASSERT_HAS(html, "system(&quot;touch ");
+  ASSERT_HAS(html, "system(&#39;touch ");
+  ASSERT_LACKS(html, "<script");
+  free(html);
+}
+END_TEST
+
 static Suite *suite(void)
 {
   Suite *s = suite_create("reportgen");
@@ -492,6 +768,10 @@ static Suite *suite(void)
   tcase_add_test(t, test_from_another_folder_and_an_archive);
   tcase_add_test(t, test_model_without_fits);
   tcase_add_test(t, test_command);
+  tcase_add_test(t, test_plot_run_record);
+  tcase_add_test(t, test_plot_and_report_on_the_wrong_file);
+  tcase_add_test(t, test_propagate_plots_checked_before_the_run);
+  tcase_add_test(t, test_hostile_files_end_to_end);
   suite_add_tcase(s, t);
   return s;
 }

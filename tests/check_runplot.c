@@ -134,6 +134,28 @@ START_TEST(test_files_of_every_chart)
   sp_runplot_set again;
   ck_assert_int_eq(sp_runplot_draw(r, &o, &again, &err), SP_EIO);
   sp_runplot_set_clear(&again);
+  /* ... before anything is drawn, even when only a file of the last chart
+   * is in the way: the earlier charts are not drawn. */
+  char first[4096], late[4096];
+  snprintf(first, sizeof first, "%s/run_y_hist.dat", dir);
+  snprintf(late, sizeof late, "%s/run_z_scatter.svg", dir);
+  for (size_t k = 0; k < set.ncharts; k++) {
+    const sp_runplot_chart *c = &set.charts[k];
+    const char *files[4] = {c->out.data, c->out.script, c->out.png, c->out.svg};
+    for (int f = 0; f < 4; f++)
+      if (c->drawn && files[f][0]) unlink(files[f]);
+  }
+  write_file(late, "x\n");
+  ck_assert_int_eq(sp_runplot_draw(r, &o, &again, &err), SP_EIO);
+  ck_assert(strstr(err.msg, "run_z_scatter.svg: file exists") != NULL);
+  ck_assert(!exists(first));
+  ck_assert_uint_eq(again.ndrawn, 0);
+  sp_runplot_set_clear(&again);
+  /* The same check before a run: sp_runplot_check. */
+  ck_assert_int_eq(sp_runplot_check(sp_run_model(r), &o, &err), SP_EIO);
+  ck_assert(strstr(err.msg, "run_z_scatter.svg: file exists") != NULL);
+  unlink(late);
+  ck_assert_int_eq(sp_runplot_check(sp_run_model(r), &o, &err), SP_OK);
   o.plot.overwrite = 1;
   ck_assert_int_eq(sp_runplot_draw(r, &o, &again, &err), SP_OK);
   sp_runplot_set_clear(&again);

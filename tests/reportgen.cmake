@@ -131,6 +131,11 @@ foreach(csv wire_d coil_dm shear_modulus assembly_load)
   file(SHA256 ${SP_SRC}/data/${csv}.csv h)
   has("${h}")
 endforeach()
+# The fits' tables as 'scatterprop fit' prints them: a bootstrap p-value
+# below 0.001 as "< 0.001" (the demo's 3-parameter Weibull of the pooled
+# wire), the chosen candidate named.
+has("&lt;&nbsp;0.001</td>")
+has("<td class=\"w\">chosen</td>")
 # Every drawn chart is inline SVG; nothing active or external.
 string(REGEX MATCHALL "<svg class=\"chart\"" charts "${DOM}")
 list(LENGTH charts ncharts)

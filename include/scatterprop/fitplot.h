@@ -166,6 +166,16 @@ char *sp_fitplot_stem(const char *column, const char *lot, int pooled, const cha
 sp_status sp_fitplot_draw(const sp_fitplot_plan *plan, const sp_table *t,
                           const sp_plot_options *opt, sp_fitplot_charts *out, sp_error *err);
 
+/* The checks of sp_fitplot_draw with the same arguments, drawing nothing
+ * and making no folder: the plan against the table, the chart folder and
+ * the templates (sp_plot_check), and unless opt->overwrite that no file of
+ * any chart exists.  For a caller that writes something else first (the
+ * fit record) and must not leave it behind when the charts would be
+ * refused.  Errors: those of sp_fitplot_draw's checks and of
+ * sp_plot_check; SP_EIO naming a file in the way. */
+sp_status sp_fitplot_check(const sp_fitplot_plan *plan, const sp_table *t,
+                           const sp_plot_options *opt, sp_error *err);
+
 /* Redraws the charts of the fit record at record_path: reads the plan
  * (sp_fitplot_plan_read), reads the data file named in the record (or
  * data_path when not NULL; a relative path in the record that does not

@@ -294,6 +294,13 @@ sp_status sp_plot_run_scatter(const sp_plot_scatter *spec, const sp_plot_options
 #define SP_PLOT_QUOTED_MAX (SP_PLOT_LABEL_MAX + 8)
 size_t sp_plot_gnuplot_string(const char *text, char *buf, size_t n);
 
+/* A count as charts and captions show it: digits in groups of three
+ * separated by a thin space (U+2009) from 10 000 up, as ISO 80000-1 writes
+ * numbers ("1 000 000"; 4-digit counts stay "2000"), into buf[0..n),
+ * n >= SP_PLOT_COUNT_MAX; returns buf. */
+#define SP_PLOT_COUNT_MAX 40
+char *sp_plot_count_text(unsigned long long v, char *buf, size_t n);
+
 /* A file stem made from any text: [A-Za-z0-9_-] kept, runs of anything
  * else become one '_', no leading '_' or '-', cut at SP_PLOT_STEM_MAX
  * bytes; "chart" when nothing is left.  Writes into buf[0..n), n >= 8;
@@ -311,6 +318,18 @@ sp_status sp_plot_template_dir(const char *fallback, char *buf, size_t n, sp_err
 /* Whether a gnuplot can be run as opt->gnuplot says: 1 and its path in
  * buf[0..n), or 0. */
 int sp_plot_gnuplot_found(const sp_plot_options *opt, char *buf, size_t n);
+
+/* Checks, before any long work, that charts can be drawn with opt: the
+ * templates are found (sp_plot_template_dir with opt->template_dir), and
+ * opt->outdir is a folder in which an entry can be made, or does not exist
+ * and its parent folder is one (outdir itself is not made here).  The
+ * check makes and removes an empty hidden folder in that folder.  Whether
+ * gnuplot is installed is not checked (without it the scripts are still
+ * written).  Errors: SP_EUSAGE (no outdir), SP_EIO (templates not found;
+ * outdir is not a folder, its parent does not exist, or nothing can be
+ * written there: the message names the folder and the reason), SP_ELIMIT
+ * (a path too long). */
+sp_status sp_plot_check(const sp_plot_options *opt, sp_error *err);
 
 #ifdef __cplusplus
 }

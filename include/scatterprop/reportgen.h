@@ -51,6 +51,7 @@
 
 #include "scatterprop/core.h"
 #include "scatterprop/plot.h"
+#include "scatterprop/runplot.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -107,6 +108,42 @@ typedef struct {
  * res (may be NULL) is filled on success. */
 sp_status sp_reportgen_write(const char *run_record, const sp_reportgen_options *opt,
                              sp_reportgen_result *res, sp_error *err);
+
+/* ---- redrawing from a record ---------------------------------------------- */
+
+/* The kind of a record, by its "format" field. */
+typedef enum {
+  SP_REPORTGEN_UNKNOWN = 0,
+  SP_REPORTGEN_FIT, /* "scatterprop-fit" */
+  SP_REPORTGEN_RUN  /* "scatterprop-run" */
+} sp_reportgen_kind;
+
+/* Reads the file at path and says which kind of record it is, by its
+ * format alone (the readers validate the rest, and name what is wrong
+ * with a file that is not a record): SP_REPORTGEN_UNKNOWN for a file that
+ * is not JSON, not an object, or has no known format.  Errors: SP_EUSAGE
+ * (no path), SP_EIO (the file cannot be read). */
+sp_status sp_reportgen_record_kind(const char *path, sp_reportgen_kind *kind, sp_error *err);
+
+/* Draws the charts of the run record at run_record (those of "propagate
+ * --plots DIR", runplot.h) into opt->plot.outdir, made (one level) when
+ * missing.  The run record holds statistics, not samples, so the run is
+ * repeated exactly as sp_reportgen_write repeats it (the model and every
+ * fit record and data file checked against their recorded SHA-256, the
+ * recorded options and seed, threads threads; 0: all cores) and compared
+ * with the record; nothing is drawn unless it reproduces every recorded
+ * figure.  The charts are then those "propagate --plots" drew (the same
+ * data and scripts, byte for byte, on the same build).  The folder and
+ * the templates are checked (sp_plot_check) before the run is repeated.
+ * Fills *set (free its contents with sp_runplot_set_clear, also after a
+ * failure) and *tolerance (may be NULL; the relative tolerance the
+ * comparison applied: 0 when the record names this build).
+ * Errors: those of sp_reportgen_write for reading and repeating the run
+ * (SP_EIO, SP_EDATA, SP_EDIFFERS, SP_EMODEL, SP_ENOMEM); SP_EUSAGE (no
+ * outdir); those of sp_plot_check and sp_runplot_draw (SP_EIO: files in
+ * the way without opt->plot.overwrite, gnuplot failing). */
+sp_status sp_reportgen_plot_run(const char *run_record, const sp_runplot_options *opt, int threads,
+                                sp_runplot_set *set, double *tolerance, sp_error *err);
 
 #ifdef __cplusplus
 }

@@ -102,13 +102,24 @@ typedef struct {
 /* Draws every chart of every output of the executed run r into
  * opt->plot.outdir (which must exist).  Fills *set (the caller provides it;
  * free its contents with sp_runplot_set_clear, also after a failure).
+ * Unless opt->plot.overwrite, every chart's four files are checked first
+ * and nothing is drawn when one exists.
  * Errors: SP_EUSAGE (r not executed, or executed without keep_samples; a
  * prefix that is not a plain name; more scatter points than
- * SP_PLOT_SCATTER_MAX), the plot module's errors (SP_EIO for files in the
- * way without overwrite, a failing gnuplot), SP_ENOMEM. */
+ * SP_PLOT_SCATTER_MAX), SP_EIO (a file in the way, naming it), the plot
+ * module's errors (a failing gnuplot), SP_ENOMEM. */
 sp_status sp_runplot_draw(const sp_run *r, const sp_runplot_options *opt, sp_runplot_set *set,
                           sp_error *err);
 void sp_runplot_set_clear(sp_runplot_set *set);
+
+/* Checks, before the run is executed, that its charts can be drawn with
+ * opt: the options (as sp_runplot_draw checks them), sp_plot_check (the
+ * templates, and a folder that is or can be made in a place one can
+ * write), and unless opt->plot.overwrite that no file of any chart of the
+ * model's outputs exists there.  sp_runplot_draw makes the last check
+ * itself before drawing anything.  Errors: SP_EUSAGE, SP_EIO (naming the
+ * folder or the file in the way), SP_ELIMIT. */
+sp_status sp_runplot_check(const sp_model *m, const sp_runplot_options *opt, sp_error *err);
 
 /* ---- building blocks, public for tests and reports ------------------------ */
 

@@ -6,6 +6,7 @@
 
 #include "scatterprop/core.h"
 #include "scatterprop/fitplot.h"
+#include "scatterprop/runplot.h"
 
 /* Exit codes (STYLE.md); every command uses them. */
 enum { CLI_OK = 0, CLI_DIFFERS = 1, CLI_USAGE = 2, CLI_DATA = 3, CLI_MODEL = 4,
@@ -59,10 +60,12 @@ void cli_replay_help(FILE *out);
 int cli_plot_run(int argc, char **argv);
 void cli_plot_help(FILE *out);
 
-/* Chart helpers shared by `fit --plots` and `plot` (cmd_plot.c): options
- * for charts in dir (tdir[0..n) receives the build-tree template folder,
- * <program folder>/../plots), and the list of charts drawn. */
+/* Chart helpers shared by `fit --plots`, `propagate --plots` and `plot`
+ * (cmd_plot.c): options for charts in dir (tdir[0..n) receives the
+ * build-tree template folder, <program folder>/../plots), and the lists
+ * of a fit's and of a run's charts drawn. */
 void cli_plot_options(sp_plot_options *o, const char *dir, int force, char *tdir, size_t n);
 void cli_plot_print(FILE *out, const sp_fitplot_charts *c, const char *dir);
+void cli_runplot_print(FILE *out, const sp_runplot_set *set, const char *dir);
 
 #endif

@@ -5,6 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
+#include <unistd.h>
 
 #include "cli.h"
 #include "scatterprop/archive.h"
@@ -416,6 +417,27 @@ int cli_fit_run(int argc, char **argv)
     o.nfamilies = nf;
   }
 
+  /* An existing record is refused before the fit, not after it. */
+  if (outpath && !force && access(outpath, F_OK) == 0) {
+    sp_fail(&err, SP_EIO, "%s: file exists; refusing to overwrite it", outpath);
+    sp_error_hint(&err, "use --force to replace it");
+    free(fambuf);
+    free(famnames);
+    return cli_report(&err);
+  }
+  /* A chart folder that cannot be used is found before the fit, not after
+   * it (and before the record is written). */
+  if (plotdir) {
+    sp_plot_options po;
+    char tdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
+    if (sp_plot_check(&po, &err) != SP_OK) {
+      free(fambuf);
+      free(famnames);
+      return cli_report(&err);
+    }
+  }
+
   sp_ingest_options io;
   sp_ingest_options_init(&io);
   sp_table *t = NULL;
@@ -442,6 +464,18 @@ int cli_fit_run(int argc, char **argv)
       goto done;
     }
   }
+  /* Charts that would be refused (files in the way) are found before the
+   * record is written, so a refusal leaves nothing behind. */
+  sp_plot_options po;
+  char tdir[SP_PLOT_PATH_MAX];
+  if (plotdir) {
+    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
+    if (sp_fitplot_plan_from_fit(&g, col->name, col->unit_text, by, &plan, &err) != SP_OK ||
+        sp_fitplot_check(&plan, t, &po, &err) != SP_OK) {
+      rc = cli_report(&err);
+      goto done;
+    }
+  }
   /* A record without a chosen family is of no use to a model (the reader
    * refuses it): nothing is written, and the exit code says why. */
   if (outpath && g.pooled.chosen >= 0 &&
@@ -452,11 +486,7 @@ int cli_fit_run(int argc, char **argv)
     goto done;
   }
   if (plotdir) {
-    sp_plot_options po;
-    char tdir[SP_PLOT_PATH_MAX];
-    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
-    if (sp_fitplot_plan_from_fit(&g, col->name, col->unit_text, by, &plan, &err) != SP_OK ||
-        sp_fitplot_draw(&plan, t, &po, &charts, &err) != SP_OK) {
+    if (sp_fitplot_draw(&plan, t, &po, &charts, &err) != SP_OK) {
       rc = cli_report(&err);
       if (charts.ndrawn) cli_plot_print(stderr, &charts, plotdir);
       goto done;

@@ -278,23 +278,6 @@ static sp_status archive_run(const char *dir, const char *record, const sp_runpl
   return s;
 }
 
-/* Says where the charts are, and the hint when gnuplot was not found. */
-static void print_plots(FILE *out, const sp_runplot_set *set, const char *dir)
-{
-  fprintf(out, "\ncharts: %zu drawn into %s/ (%zu rendered to PNG and SVG)\n", set->ndrawn,
-          dir, set->nrendered);
-  int hinted = 0;
-  for (size_t k = 0; k < set->ncharts; k++) {
-    const sp_runplot_chart *c = &set->charts[k];
-    if (c->drawn && !c->out.rendered && !hinted) {
-      fprintf(out, "  %s\n", c->note);
-      hinted = 1;
-    } else if (!c->drawn && c->kind != SP_RUNPLOT_SOBOL) {
-      fprintf(out, "  %s\n", c->note);
-    }
-  }
-}
-
 static int mkdir_p(const char *dir, sp_error *err)
 {
   struct stat st;
@@ -445,6 +428,19 @@ int cli_propagate_run(int argc, char **argv)
     free(pcts);
     return rc;
   }
+  /* A chart folder that cannot be used, or charts in the way, are found
+   * before the run, not after it. */
+  if (plotdir) {
+    sp_runplot_options po;
+    sp_runplot_options_init(&po);
+    char tdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&po.plot, plotdir, force, tdir, sizeof tdir);
+    if (sp_runplot_check(sp_run_model(run), &po, &err) != SP_OK) {
+      sp_run_free(run);
+      free(pcts);
+      return cli_report(&err);
+    }
+  }
   progress_state ps = {isatty(2), time(NULL), 0};
   ro.engine.progress = on_progress;
   ro.engine.progress_user = &ps;
@@ -490,7 +486,7 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
-      if (plotdir) print_plots(stderr, &plots, plotdir);
+      if (plotdir) cli_runplot_print(stderr, &plots, plotdir);
     } else {
       const sp_engine_result *res = sp_run_result(run);
       const sp_model *m = sp_run_model(run);
@@ -517,7 +513,7 @@ int cli_propagate_run(int argc, char **argv)
       for (size_t j = 0; j < res->noutputs; j++) print_output(stdout, run, j);
       print_limits(stdout, run);
       if (outdir) printf("\nrun record and tables written to %s/\n", outdir);
-      if (plotdir) print_plots(stdout, &plots, plotdir);
+      if (plotdir) cli_runplot_print(stdout, &plots, plotdir);
       if (archive) printf("archive written to %s/\n", archive);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");

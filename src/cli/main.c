@@ -8,16 +8,17 @@
 #include "cli.h"
 
 static const cli_command commands[] = {
-  {"summary", "check an inspection CSV and describe its numeric columns",
-   cli_summary_run, cli_summary_help},
-  {"fit", "fit distribution families to a column, rank them, write a fit record",
-   cli_fit_run, cli_fit_help},
-  {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
-   cli_propagate_run, cli_propagate_help},
-  {"plot", "redraw the charts of a fit from its fit record", cli_plot_run, cli_plot_help},
-  {"report", "one self-contained HTML report of a run, its fits and its data",
-   cli_report_run, cli_report_help},
-  {"replay", "rerun a fit or run record and compare with what it recorded", cli_replay_run, cli_replay_help},
+    {"summary", "check an inspection CSV and describe its numeric columns", cli_summary_run,
+     cli_summary_help},
+    {"fit", "fit distribution families to a column, rank them, write a fit record", cli_fit_run,
+     cli_fit_help},
+    {"propagate", "run a model by Monte Carlo: spread, limits, sensitivity, run record",
+     cli_propagate_run, cli_propagate_help},
+    {"plot", "redraw the charts of a fit or a run from its record", cli_plot_run, cli_plot_help},
+    {"report", "one self-contained HTML report of a run, its fits and its data", cli_report_run,
+     cli_report_help},
+    {"replay", "rerun a fit or run record and compare with what it recorded", cli_replay_run,
+     cli_replay_help},
 };
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
