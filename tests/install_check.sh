@@ -12,7 +12,8 @@ trap 'rm -rf "$prefix"' EXIT
 cmake --install "$build" --prefix "$prefix" >/dev/null
 for f in bin/scatterprop include/scatterprop/core.h include/scatterprop/ingest.h \
          include/scatterprop/run.h share/man/man1/scatterprop.1 \
-         share/scatterprop/plots/style.gp share/scatterprop/plots/fit_hist.gp; do
+         share/scatterprop/plots/style.gp share/scatterprop/plots/fit_hist.gp \
+         share/doc/scatterprop/docs/csv-input.md share/doc/scatterprop/LICENSE; do
   [ -e "$prefix/$f" ] || { echo "install_check: $f was not installed"; exit 1; }
 done
 # No private header of src/ may be installed.
