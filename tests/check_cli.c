@@ -136,6 +136,21 @@ START_TEST(test_summary_options)
   ASSERT_HAS(out_text, "\"missing\": 1");
   ck_assert_int_eq(cli("summary dc.csv"), 3);
   ASSERT_HAS(err_text, "give --decimal-comma");
+  /* Long lot ids are printed whole (cut at 24 characters, these two would
+   * read the same), and a UTF-8 id is padded by characters, not bytes. */
+  write_file(path_in("long.csv"), "lot,d [mm]\nSUPPLIER-A-2024-11-03-COIL-0001,1\n"
+                                  "SUPPLIER-A-2024-11-03-COIL-0002,2\nCharge-\xC3\x84,3\n");
+  ck_assert_int_eq(cli("summary long.csv --by lot"), 0);
+  ASSERT_HAS(out_text, "  SUPPLIER-A-2024-11-03-COIL-0001     1    0");
+  ASSERT_HAS(out_text, "  SUPPLIER-A-2024-11-03-COIL-0002     1    0");
+  ASSERT_HAS(out_text, "  Charge-\xC3\x84"
+                       "                            1    0"); /* 23 + 5 blanks */
+  /* Output that cannot be written is an I/O error, not a success. */
+  if (access("/dev/full", W_OK) == 0) {
+    ck_assert_int_eq(cli("summary lots.csv --json >/dev/full"), 6);
+    ASSERT_HAS(err_text, "scatterprop: error: cannot write the standard output: ");
+    ck_assert_int_eq(cli("--help >/dev/full"), 6);
+  }
 }
 END_TEST
 

@@ -45,6 +45,16 @@ static void put_shape(FILE *out, double v)
   else fprintf(out, " %6.2f", v);
 }
 
+/* Columns a UTF-8 text takes on a terminal: its characters (the bytes that
+ * are not continuation bytes; the reader has checked it is UTF-8). */
+static int text_width(const char *s)
+{
+  int w = 0;
+  for (; *s; s++)
+    w += ((unsigned char)*s & 0xC0) != 0x80;
+  return w;
+}
+
 static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_block *b)
 {
   const sp_column *c = b->column;
@@ -64,10 +74,11 @@ static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_blo
                    : 12;
     if (need > width) width = need;
   }
+  /* Group labels are never cut: two lots that differ only at the end of a
+   * long id must stay apart. */
   int gw = 8;
   for (size_t g = 0; g < b->nrows; g++)
-    if (b->rows[g].group && (int)strlen(b->rows[g].group) > gw) gw = (int)strlen(b->rows[g].group);
-  if (gw > 24) gw = 24;
+    if (b->rows[g].group && text_width(b->rows[g].group) > gw) gw = text_width(b->rows[g].group);
   fprintf(out, "  %-*s %5s %4s %*s %*s %*s %*s %*s %*s %*s %6s %6s\n", gw, "group", "n",
           "miss", width, "mean", width, "sd", width, "min", width, "q1", width, "median",
           width, "q3", width, "max", "skew", "exkurt");
@@ -75,7 +86,8 @@ static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_blo
     const sp_summary_row *r = &b->rows[g];
     const char *label = r->group ? (r->group[0] ? r->group : "(blank)")
                                  : (s->by ? "(pooled)" : "(all)");
-    fprintf(out, "  %-*.*s %5zu %4zu", gw, gw, label, r->has_stats ? r->d.n : 0, r->missing);
+    fprintf(out, "  %s%*s %5zu %4zu", label, gw - text_width(label), "", r->has_stats ? r->d.n : 0,
+            r->missing);
     if (!r->has_stats) {
       fprintf(out, "  every value is missing\n");
       continue;
