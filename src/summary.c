@@ -19,6 +19,16 @@ void sp_groups_free(sp_group *groups, size_t ngroups)
   free(groups);
 }
 
+static size_t label_hash(const char *s)
+{
+  uint64_t h = 1469598103934665603ull;
+  for (; *s; s++) {
+    h ^= (unsigned char)*s;
+    h *= 1099511628211ull;
+  }
+  return (size_t)h;
+}
+
 sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
                           size_t *ngroups, sp_error *err)
 {
@@ -39,50 +49,75 @@ sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
                               "are read as text when the column is named in the ingest "
                               "options' text_columns");
   }
+  /* Each row's group is found through a hash table of the labels (FNV-1a,
+   * open addressing; Fowler, Noll & Vo, http://www.isthe.com/chongo/tech/
+   * comp/fnv/), so that grouping is linear in the rows even when every row
+   * is its own group (--by a part number); groups keep the order in which
+   * their label first appears. */
   sp_group *g = NULL;
-  size_t ng = 0;
-  /* Labels are interned by the reader: equal strings share one pointer, so
-   * grouping compares pointers.  Few groups are expected; a linear scan of
-   * the group list per row is fine and keeps first-appearance order. */
-  size_t *counts = NULL;
-  for (int pass = 0; pass < 2; pass++) {
-    for (size_t r = 0; r < t->nrows; r++) {
-      const char *v = c->text[r];
-      size_t k = 0;
-      while (k < ng && strcmp(g[k].label, v) != 0) k++;
-      if (pass == 0) {
-        if (k == ng) {
-          sp_group *ngp = realloc(g, (ng + 1) * sizeof *g);
-          size_t *nc = realloc(counts, (ng + 1) * sizeof *counts);
-          if (ngp) g = ngp;
-          if (nc) counts = nc;
-          if (!ngp || !nc) goto oom;
-          memset(&g[ng], 0, sizeof g[ng]);
-          counts[ng] = 0;
-          g[ng].label = malloc(strlen(v) + 1);
-          if (!g[ng].label) goto oom;
-          strcpy(g[ng].label, v);
-          ng++;
-        }
-        counts[k]++;
-      } else {
-        /* allocated and checked above under the same status (not followed):
-         * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
-        g[k].rows[g[k].n++] = r;
-      }
-    }
-    if (pass == 0)
+  size_t ng = 0, capg = 0;
+  size_t *gid = malloc((t->nrows ? t->nrows : 1) * sizeof *gid);
+  size_t hcap = 64;
+  size_t *slot = NULL; /* group index + 1, 0 when empty */
+  if (!gid) goto oom;
+  slot = calloc(hcap, sizeof *slot);
+  if (!slot) goto oom;
+  for (size_t r = 0; r < t->nrows; r++) {
+    const char *v = c->text[r];
+    if (2 * (ng + 1) > hcap) { /* keep the table at most half full */
+      size_t ncap = 2 * hcap;
+      size_t *ns = calloc(ncap, sizeof *ns);
+      if (!ns) goto oom;
       for (size_t k = 0; k < ng; k++) {
-        g[k].rows = malloc((counts[k] ? counts[k] : 1) * sizeof *g[k].rows);
-        if (!g[k].rows) goto oom;
+        size_t j = label_hash(g[k].label) & (ncap - 1);
+        while (ns[j])
+          j = (j + 1) & (ncap - 1);
+        ns[j] = k + 1;
       }
+      free(slot);
+      slot = ns;
+      hcap = ncap;
+    }
+    size_t j = label_hash(v) & (hcap - 1);
+    while (slot[j] && strcmp(g[slot[j] - 1].label, v) != 0)
+      j = (j + 1) & (hcap - 1);
+    if (!slot[j]) {
+      if (ng == capg) {
+        size_t nc = capg ? 2 * capg : 8;
+        sp_group *ngp = realloc(g, nc * sizeof *g);
+        if (!ngp) goto oom;
+        g = ngp;
+        capg = nc;
+      }
+      memset(&g[ng], 0, sizeof g[ng]);
+      g[ng].label = malloc(strlen(v) + 1);
+      if (!g[ng].label) goto oom;
+      strcpy(g[ng].label, v);
+      slot[j] = ++ng;
+    }
+    gid[r] = slot[j] - 1;
+    if (!g) goto oom; /* not reached: a slot holds a group (for the analyzer) */
+    g[gid[r]].n++;
   }
-  free(counts);
+  for (size_t k = 0; k < ng; k++) {
+    g[k].rows = malloc((g[k].n ? g[k].n : 1) * sizeof *g[k].rows);
+    if (!g[k].rows) goto oom;
+    g[k].n = 0;
+  }
+  for (size_t r = 0; r < t->nrows; r++) {
+    sp_group *k = &g[gid[r]];
+    /* allocated above for every group (not followed by the analyzer):
+     * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
+    k->rows[k->n++] = r;
+  }
+  free(gid);
+  free(slot);
   *groups = g;
   *ngroups = ng;
   return SP_OK;
 oom:
-  free(counts);
+  free(gid);
+  free(slot);
   sp_groups_free(g, ng);
   return sp_fail(err, SP_ENOMEM, "out of memory");
 }

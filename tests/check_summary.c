@@ -247,6 +247,50 @@ START_TEST(test_json_never_drops_text)
 }
 END_TEST
 
+START_TEST(test_many_groups)
+{
+  /* Grouping by a part number makes every row its own group; the groups
+   * are found in time linear in the rows (a search of the group list per
+   * row took half a minute for 50 000 rows, so some 8 minutes here, past
+   * the test's timeout), in order of first appearance. */
+  size_t rows = 200000, cap = rows * 20 + 32, len = 0;
+  char *csv = malloc(cap);
+  len += (size_t)snprintf(csv + len, cap - len, "part,d [mm]\n");
+  for (size_t i = 0; i < rows; i++)
+    len += (size_t)snprintf(csv + len, cap - len, "P%06zu,%zu\n", (i * 7919) % rows, i);
+  sp_error err;
+  sp_error_clear(&err);
+  sp_table *t = NULL;
+  ck_assert_int_eq(sp_table_read_buffer("m.csv", csv, len, NULL, &t, &err), SP_OK);
+  sp_group *g = NULL;
+  size_t ng = 0;
+  ck_assert_int_eq(sp_table_groups(t, "part", &g, &ng, &err), SP_OK);
+  /* 7919 is a prime other than 2 and 5: i -> 7919 i mod (2 10^5) is one to one. */
+  ck_assert_uint_eq(ng, rows);
+  ck_assert_str_eq(g[0].label, "P000000");
+  ck_assert_str_eq(g[1].label, "P007919");
+  for (size_t k = 0; k < ng; k++)
+    ck_assert(g[k].n == 1 && g[k].rows[0] == k);
+  sp_groups_free(g, ng);
+  /* A few groups over many rows: the rows of each, ascending. */
+  sp_table_free(t);
+  len = (size_t)snprintf(csv, cap, "lot,d [mm]\n");
+  for (size_t i = 0; i < rows; i++)
+    len += (size_t)snprintf(csv + len, cap - len, "L%zu,%zu\n", (i * i) % 3, i);
+  ck_assert_int_eq(sp_table_read_buffer("m.csv", csv, len, NULL, &t, &err), SP_OK);
+  ck_assert_int_eq(sp_table_groups(t, "lot", &g, &ng, &err), SP_OK);
+  ck_assert_uint_eq(ng, 2); /* squares mod 3 are 0 and 1 */
+  ck_assert_str_eq(g[0].label, "L0");
+  ck_assert_uint_eq(g[0].n + g[1].n, rows);
+  for (size_t k = 1; k < g[1].n; k++)
+    ck_assert(g[1].rows[k] > g[1].rows[k - 1]);
+  ck_assert_uint_eq(g[0].n, (rows + 2) / 3); /* i = 0 mod 3 */
+  sp_groups_free(g, ng);
+  sp_table_free(t);
+  free(csv);
+}
+END_TEST
+
 static Suite *summary_suite(void)
 {
   Suite *s = suite_create("summary");
@@ -257,6 +301,7 @@ static Suite *summary_suite(void)
   tcase_add_test(tc, test_decimals);
   tcase_add_test(tc, test_json);
   tcase_add_test(tc, test_json_never_drops_text);
+  tcase_add_test(tc, test_many_groups);
   suite_add_tcase(s, tc);
   return s;
 }
