@@ -412,6 +412,23 @@ static int is_missing(const char *s, size_t n)
   return n == 0 || (n == 2 && s[0] == 'N' && s[1] == 'A');
 }
 
+/* Non-zero when the cell is a number followed by a unit ("2.01 mm",
+ * "120N", "5 %"): letters, '%' and non-ASCII bytes (a micro or degree
+ * sign) after a part that reads as a number. */
+static int unit_in_cell(const char *s, size_t n, char decimal)
+{
+  size_t k = n;
+  while (k > 0 && (is_blank(s[k - 1]) || s[k - 1] == '%' || (unsigned char)s[k - 1] >= 0x80 ||
+                   (s[k - 1] >= 'a' && s[k - 1] <= 'z') || (s[k - 1] >= 'A' && s[k - 1] <= 'Z')))
+    k--;
+  if (k == n || k == 0 || k > 64) return 0;
+  char num[65];
+  memcpy(num, s, k);
+  num[k] = '\0';
+  double v;
+  return sp_parse_double(num, decimal, &v, NULL) == SP_OK;
+}
+
 static const char comment_hint[] =
     "'#' lines are metadata only before the header; after it they are rows: delete this "
     "line or move it above the header";
@@ -488,9 +505,16 @@ static sp_status process_row(reader *r)
     else if (r->decimal == '.' && memchr(s, ';', n))
       sp_error_hint(&ce, "if ';' separates the cells (and ',' is the decimal separator), "
                          "give --decimal-comma");
+    else if (r->decimal == '.' && memchr(s, ',', n) && memchr(s, '.', n))
+      sp_error_hint(&ce, "thousands separators are not read: write 1234.5, not 1,234.5");
     else if (r->decimal == '.' && memchr(s, ',', n))
       sp_error_hint(&ce, "if ',' is the decimal separator (and ';' separates cells), "
                          "give --decimal-comma");
+    else if (unit_in_cell(s, n, r->decimal))
+      sp_error_hint(&ce,
+                    "a unit goes in the header cell ('%s [unit]'), not after each "
+                    "reading",
+                    col->name);
     else if (r->decimal == ',' && memchr(s, '.', n))
       sp_error_hint(&ce, "with --decimal-comma, '.' is not accepted in numbers "
                          "(it may be a thousands separator in this export)");

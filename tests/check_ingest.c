@@ -660,6 +660,14 @@ START_TEST(test_hints)
                   "'#' lines are metadata only before the header");
   read_fails_hint("d [mm]\n1\n# later note\n", NULL, SP_EDATA, 3, 1,
                   "'# later note' is not a number", "move it above the header");
+  read_fails_hint("d [mm]\n1\n2.01 mm\n", NULL, SP_EDATA, 3, 1, "'2.01 mm' is not a number",
+                  "a unit goes in the header cell ('d [unit]'), not after each reading");
+  read_fails_hint("F\n120\n118N\n", NULL, SP_EDATA, 3, 1, "'118N' is not a number",
+                  "a unit goes in the header cell");
+  read_fails_hint("F [N]\n\"1,234.5\"\n", NULL, SP_EDATA, 2, 1, "'1,234.5' is not a number",
+                  "thousands separators are not read");
+  read_fails_hint("F [N]\nO.52\n", NULL, SP_EDATA, 2, 1, "'O.52' is not a number",
+                  "write a missing reading as an empty cell or NA");
   read_fails_hint("d [mm],note\n1,\"open\n", NULL, SP_EDATA, 2, 2, "never closed", "doubled");
   read_fails_hint("d [mm],note\n1,a\"b\n", NULL, SP_EDATA, 2, 2, "malformed quoting", "doubled");
 }
