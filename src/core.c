@@ -14,6 +14,7 @@
 #include <sha2.h>
 
 #include "build_info.h"
+#include "utf8.h"
 
 void sp_error_clear(sp_error *err)
 {
@@ -134,7 +135,8 @@ sp_status sp_parse_double(const char *text, char decimal_sep, double *out,
   while (len > 0 && (s[len - 1] == ' ' || s[len - 1] == '\t')) len--;
   if (len == 0) return sp_fail(err, SP_EDATA, "empty text is not a number");
   if (len >= sizeof buf)
-    return sp_fail(err, SP_EDATA, "'%.40s...' is not a number (too long)", s);
+    return sp_fail(err, SP_EDATA, "'%.*s...' is not a number (too long)", (int)sp_utf8_cut(s, 40),
+                   s);
 
   size_t i = 0, o = 0, ndig = 0, nsep = 0;
   int ok = 1;

@@ -17,7 +17,11 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <sys/stat.h>
+
 #include <csv.h>
+
+#include "utf8.h"
 
 /* ---- small growable buffers -------------------------------------------- */
 
@@ -162,7 +166,20 @@ typedef struct {
   size_t cap_meta, cap_skipped;
   char *carry;                 /* a pre-header line cut by a chunk's end */
   size_t ncarry, cap_carry;
+
+  int line_ends; /* LINE_ENDS_*: decided at the first line end */
 } reader;
+
+/* Line ends: LF or CRLF (counted at each LF), or a bare CR as old
+ * spreadsheet exports write them, which the reader turns into LF before it
+ * splits lines, so that line numbers and '#' lines work the same.  The kind
+ * is decided at the first CR or LF of the file. */
+enum { LINE_ENDS_UNDECIDED, LINE_ENDS_LF, LINE_ENDS_CR };
+
+static const char utf8_hint[] =
+    "save the file as UTF-8 (a spreadsheet's 'CSV UTF-8' export); in Latin-1 or "
+    "Windows-1252 the micro and degree signs, for instance, are single bytes that are "
+    "not UTF-8";
 
 static sp_status rd_fail(reader *r, sp_status code, long line, long col, const char *fmt, ...)
     __attribute__((format(printf, 5, 6)));
@@ -175,6 +192,9 @@ static sp_status rd_fail(reader *r, sp_status code, long line, long col, const c
   vsnprintf(msg, sizeof msg, fmt, ap);
   va_end(ap);
   r->status = sp_fail_at(r->err, code, r->name, line, col, "%.1000s", msg);
+  if (code == SP_ELIMIT)
+    sp_error_hint(r->err, "docs/limits.md lists the reader's limits; a quoted cell that is "
+                          "never closed runs on to the end of the file and meets one of them");
   return r->status;
 }
 
@@ -186,16 +206,31 @@ static sp_status parse_header_cell(reader *r, size_t i, sp_column *c)
   const char *s = field(r, i);
   size_t n = strlen(s);
   trim(&s, &n);
+  size_t bad = sp_utf8_check(s, n);
+  if (bad < n) {
+    rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
+            "header cell %zu is not valid UTF-8 (byte 0x%02X at byte %zu of the cell)", i + 1,
+            (unsigned char)s[bad], bad + 1);
+    return sp_error_hint(r->err, "%s", utf8_hint);
+  }
   c->header = dup_range(s, n);
   if (!c->header) return sp_fail(r->err, SP_ENOMEM, "out of memory");
   const char *open = memchr(s, '[', n);
   const char *close = n ? memchr(s, ']', n) : NULL;
   size_t name_len = n;
   if (open || close) {
-    if (!open || !close || close < open || close != s + n - 1)
-      return rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
-                     "header cell '%s': a unit goes in brackets at the end, as 'name [unit]'",
-                     c->header);
+    if (!open || !close || close < open || close != s + n - 1) {
+      rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
+              "header cell '%s': a unit goes in brackets at the end, as 'name [unit]'", c->header);
+      if (r->decimal == '.' && memchr(s, ';', n))
+        return sp_error_hint(r->err, "if ';' separates the cells (and ',' is the decimal "
+                                     "separator), give --decimal-comma");
+      if (r->decimal == ',' && memchr(s, ',', n))
+        return sp_error_hint(r->err, "with --decimal-comma, ';' separates the cells; for a "
+                                     "file whose cells are separated by ',', leave it out");
+      return sp_error_hint(r->err, "write one unit in brackets after the name, such as "
+                                   "'load [N]', and nothing after it");
+    }
     name_len = (size_t)(open - s);
     const char *u = open + 1;
     size_t ulen = (size_t)(close - u);
@@ -205,10 +240,13 @@ static sp_status parse_header_cell(reader *r, size_t i, sp_column *c)
   }
   const char *nm = s;
   trim(&nm, &name_len);
-  if (name_len == 0)
-    return rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
-                   "header cell %zu has no column name%s", i + 1,
-                   c->unit_text ? " (only a unit)" : "");
+  if (name_len == 0) {
+    rd_fail(r, SP_EDATA, r->record_line, (long)i + 1, "header cell %zu has no column name%s", i + 1,
+            c->unit_text ? " (only a unit)" : "");
+    return sp_error_hint(r->err, "every header cell needs a name, such as 'load [N]'; a "
+                                 "separator at the end of the header line makes an empty "
+                                 "last cell");
+  }
   c->name = dup_range(nm, name_len);
   if (!c->name) return sp_fail(r->err, SP_ENOMEM, "out of memory");
   if (c->unit_text) {
@@ -221,11 +259,24 @@ static sp_status parse_header_cell(reader *r, size_t i, sp_column *c)
         r->status = ue.code;
         return ue.code;
       }
-      return rd_fail(r, SP_EDATA, r->record_line, (long)i + 1, "header cell '%s': %.900s",
-                     c->header, ue.msg);
+      rd_fail(r, SP_EDATA, r->record_line, (long)i + 1, "header cell '%s': %.900s", c->header,
+              ue.msg);
+      if (strstr(ue.msg, "unknown unit"))
+        return sp_error_hint(r->err,
+                             "units are udunits2 names or symbols with SI prefixes, and case "
+                             "matters: mm, um, N, kN, MPa, GPa, N/mm, degC, percent");
+      return sp_error_hint(r->err, "write products with '.' or a blank (N.m), quotients with "
+                                   "'/' (N/mm) and integer powers as mm2 or mm^2");
     }
   }
   return SP_OK;
+}
+
+/* Non-zero when want is the column's name or its whole header cell. */
+static int named(const sp_column *c, const char *want)
+{
+  return c->name && c->header && want &&
+         (strcmp(c->name, want) == 0 || strcmp(c->header, want) == 0);
 }
 
 static sp_status process_header(reader *r)
@@ -254,8 +305,30 @@ static sp_status process_header(reader *r)
       if (strcmp(all[i].name, all[j].name) == 0) {
         s = rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
                     "column name '%s' is used twice (also header cell %zu)", all[i].name, j + 1);
+        sp_error_hint(r->err, "give each column its own name (names are compared without "
+                              "their units)");
       }
 
+  /* A header of one cell that holds the other separator is almost always a
+   * file read with the wrong separator (read on, it would give one text
+   * column, or with --decimal-comma, silently, one column of wrong
+   * numbers). */
+  if (s == SP_OK && n == 1) {
+    const char *h = all[0].header ? all[0].header : ""; /* set when s is SP_OK */
+    if (r->decimal == '.' && strchr(h, ';')) {
+      s = rd_fail(r, SP_EDATA, r->record_line, 1, "the header is one cell, '%s', that holds ';'",
+                  h);
+      sp_error_hint(r->err, "if ';' separates the cells (and ',' is the decimal "
+                            "separator), give --decimal-comma");
+    } else if (r->decimal == ',' && strchr(h, ',')) {
+      s = rd_fail(r, SP_EDATA, r->record_line, 1,
+                  "with --decimal-comma, ';' separates the cells, but the header is one "
+                  "cell, '%s', that holds ','",
+                  h);
+      sp_error_hint(r->err, "for a file whose cells are separated by ',', leave out "
+                            "--decimal-comma");
+    }
+  }
   /* Which columns to keep. */
   size_t nkeep = 0;
   for (size_t i = 0; i < n; i++) r->cs[i].keep = -1;
@@ -294,6 +367,9 @@ static sp_status process_header(reader *r)
        * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
       t->cols[nkeep++] = all[i];
       r->cs[i].kind = all[i].unit ? KIND_NUMERIC : KIND_UNDECIDED;
+      /* Columns the caller reads as text (lot ids written as numbers). */
+      for (size_t k = 0; !all[i].unit && k < r->opt->ntext_columns; k++)
+        if (named(&all[i], r->opt->text_columns[k])) r->cs[i].kind = KIND_TEXT;
     } else {
       r->cs[i].keep = -1;
       free(all[i].name); free(all[i].header); free(all[i].unit_text);
@@ -336,19 +412,52 @@ static int is_missing(const char *s, size_t n)
   return n == 0 || (n == 2 && s[0] == 'N' && s[1] == 'A');
 }
 
+/* Non-zero when the cell is a number followed by a unit ("2.01 mm",
+ * "120N", "5 %"): letters, '%' and non-ASCII bytes (a micro or degree
+ * sign) after a part that reads as a number. */
+static int unit_in_cell(const char *s, size_t n, char decimal)
+{
+  size_t k = n;
+  while (k > 0 && (is_blank(s[k - 1]) || s[k - 1] == '%' || (unsigned char)s[k - 1] >= 0x80 ||
+                   (s[k - 1] >= 'a' && s[k - 1] <= 'z') || (s[k - 1] >= 'A' && s[k - 1] <= 'Z')))
+    k--;
+  if (k == n || k == 0 || k > 64) return 0;
+  char num[65];
+  memcpy(num, s, k);
+  num[k] = '\0';
+  double v;
+  return sp_parse_double(num, decimal, &v, NULL) == SP_OK;
+}
+
+static const char comment_hint[] =
+    "'#' lines are metadata only before the header; after it they are rows: delete this "
+    "line or move it above the header";
+
 static sp_status process_row(reader *r)
 {
   sp_table *t = r->t;
   sp_error ce;
   sp_error_clear(&ce);
+  const char *first = r->nfields ? field(r, 0) : "";
+  while (is_blank(*first))
+    first++;
+  int comment = *first == '#';
   if (r->nfields != r->nfile_cols) {
     long col = (long)(r->nfields < r->nfile_cols ? r->nfields : r->nfile_cols + 1);
     if (col < 1) col = 1;
     sp_fail_at(&ce, SP_EDATA, r->name, r->record_line, col,
                "this row has %zu field%s, the header has %zu", r->nfields,
                r->nfields == 1 ? "" : "s", r->nfile_cols);
-    sp_error_hint(&ce, "a ragged row often means an unquoted separator inside a cell, "
-                       "or a missing cell; give --skip-bad-rows to skip such rows");
+    if (comment)
+      sp_error_hint(&ce, "%s", comment_hint);
+    else if (r->decimal == '.' && r->nfields > r->nfile_cols)
+      sp_error_hint(&ce, "a ragged row often means an unquoted separator inside a cell: "
+                         "quote such cells, or if ',' is the decimal separator (1,5) and ';' "
+                         "separates the cells, give --decimal-comma; give --skip-bad-rows to "
+                         "skip such rows");
+    else
+      sp_error_hint(&ce, "a ragged row often means an unquoted separator inside a cell, "
+                         "or a missing cell; give --skip-bad-rows to skip such rows");
     return bad_row(r, col, &ce);
   }
   /* Parse every kept cell into the scratch row first. */
@@ -367,18 +476,45 @@ static sp_status process_row(reader *r)
       r->rv[i] = NAN;
       continue;
     }
-    if (c->kind == KIND_TEXT) { r->rt[i] = s; continue; }
+    const sp_column *col = &t->cols[c->keep];
     double v;
     sp_error pe;
     sp_error_clear(&pe);
-    if (sp_parse_double(s, r->decimal, &v, &pe) == SP_OK) { r->rv[i] = v; continue; }
-    if (c->kind == KIND_UNDECIDED) { r->rt[i] = s; continue; } /* becomes text */
-    const sp_column *col = &t->cols[c->keep];
+    /* A number is ASCII, so only text and bad cells need the UTF-8 check. */
+    if (c->kind != KIND_TEXT && sp_parse_double(s, r->decimal, &v, &pe) == SP_OK) {
+      r->rv[i] = v;
+      continue;
+    }
+    size_t bad = sp_utf8_check(s, n);
+    if (bad < n) {
+      sp_fail_at(&ce, SP_EDATA, r->name, r->record_line, (long)i + 1,
+                 "the cell is not valid UTF-8 (byte 0x%02X at byte %zu of the cell; column "
+                 "\"%s\")",
+                 (unsigned char)s[bad], bad + 1, col->header);
+      sp_error_hint(&ce, "%s", utf8_hint);
+      return bad_row(r, (long)i + 1, &ce);
+    }
+    if (c->kind != KIND_NUMERIC) { /* text, or becomes text */
+      r->rt[i] = s;
+      continue;
+    }
     sp_fail_at(&ce, SP_EDATA, r->name, r->record_line, (long)i + 1, "%s (column \"%s\")",
                pe.msg, col->header);
-    if (r->decimal == '.' && memchr(s, ',', n))
+    if (comment)
+      sp_error_hint(&ce, "%s", comment_hint);
+    else if (r->decimal == '.' && memchr(s, ';', n))
+      sp_error_hint(&ce, "if ';' separates the cells (and ',' is the decimal separator), "
+                         "give --decimal-comma");
+    else if (r->decimal == '.' && memchr(s, ',', n) && memchr(s, '.', n))
+      sp_error_hint(&ce, "thousands separators are not read: write 1234.5, not 1,234.5");
+    else if (r->decimal == '.' && memchr(s, ',', n))
       sp_error_hint(&ce, "if ',' is the decimal separator (and ';' separates cells), "
                          "give --decimal-comma");
+    else if (unit_in_cell(s, n, r->decimal))
+      sp_error_hint(&ce,
+                    "a unit goes in the header cell ('%s [unit]'), not after each "
+                    "reading",
+                    col->name);
     else if (r->decimal == ',' && memchr(s, '.', n))
       sp_error_hint(&ce, "with --decimal-comma, '.' is not accepted in numbers "
                          "(it may be a thousands separator in this export)");
@@ -458,6 +594,8 @@ static void on_field(void *s, size_t len, void *data)
   if (len && memchr(s, '\0', len)) {
     rd_fail(r, SP_EDATA, r->record_line, (long)r->nfields,
             "a cell contains a NUL byte (is this a text file?)");
+    sp_error_hint(r->err, "a CSV file is text; a file saved as UTF-16 ('Unicode text') has "
+                          "a NUL in every other byte: save it as UTF-8");
     return;
   }
   r->fbuf_len += len + 1;
@@ -482,6 +620,13 @@ static void on_row(int c, void *data)
 static sp_status add_meta(reader *r, const char *s, size_t n)
 {
   sp_table *t = r->t;
+  size_t bad = sp_utf8_check(s, n);
+  if (bad < n) {
+    rd_fail(r, SP_EDATA, r->line, 1,
+            "this '#' metadata line is not valid UTF-8 (byte 0x%02X at byte %zu of the line)",
+            (unsigned char)s[bad], bad + 1);
+    return sp_error_hint(r->err, "%s", utf8_hint);
+  }
   s++; n--; /* the '#' */
   trim(&s, &n);
   const char *colon = memchr(s, ':', n);
@@ -526,7 +671,11 @@ static void feed_line(reader *r, struct csv_parser *p, const char *s, size_t n, 
     if (s[0] == '#' && complete) {                 /* metadata */
       size_t m = n;
       while (m > 0 && (s[m - 1] == '\n' || s[m - 1] == '\r')) m--;
-      add_meta(r, s, m);
+      sp_status ms = add_meta(r, s, m);
+      if (ms != SP_OK) {
+        r->status = ms;
+        return;
+      }
       r->line++;
       return;
     }
@@ -542,11 +691,13 @@ static void feed_line(reader *r, struct csv_parser *p, const char *s, size_t n, 
   }
   if (csv_parse(p, s, n, on_field, on_row, r) != n && r->status == SP_OK) {
     int e = csv_error(p);
-    if (e == CSV_EPARSE)
+    if (e == CSV_EPARSE) {
       rd_fail(r, SP_EDATA, r->line, (long)r->nfields + 1,
               "malformed quoting: a quote inside an unquoted cell, or text after a "
               "closing quote");
-    else
+      sp_error_hint(r->err, "a cell with a quote in it is itself quoted, and the quote "
+                            "doubled: \"12\"\" gauge\" reads as 12\" gauge");
+    } else
       r->status = sp_fail(r->err, SP_ENOMEM, "%s: %s", r->name, csv_strerror(e));
     return;
   }
@@ -592,9 +743,12 @@ static sp_status finish(reader *r, struct csv_parser *p)
   sp_table *t = r->t;
   if (r->status == SP_OK) {
     r->row_ended_this_line = 0;
-    if (csv_fini(p, on_field, on_row, r) != 0 && r->status == SP_OK)
+    if (csv_fini(p, on_field, on_row, r) != 0 && r->status == SP_OK) {
       rd_fail(r, SP_EDATA, r->record_line, (long)r->nfields + 1,
               "a quoted cell is never closed (it starts on this line)");
+      sp_error_hint(r->err, "a cell that starts with '\"' ends with '\"'; a quote inside a "
+                            "quoted cell is doubled (\"\")");
+    }
   }
   if (r->status == SP_OK && !r->have_header) {
     r->status = sp_fail_at(r->err, SP_EDATA, r->name, 0, 0,
@@ -701,6 +855,44 @@ static void feed_rest(reader *r, struct csv_parser *p)
    * NOLINTNEXTLINE(clang-analyzer-unix.Malloc) */
 }
 
+/* Hands one chunk of the input (writable, hashed already) to the reader:
+ * skips a UTF-8 byte-order mark at the start, refuses a UTF-16 one, and
+ * turns bare CR line ends into LF (a quoted cell's own bare CRs too, which
+ * in such a file cannot be told from line ends). */
+static void feed_input(reader *r, struct csv_parser *p, char *b, size_t n, int first)
+{
+  if (first) {
+    if (n >= 3 && memcmp(b, "\xEF\xBB\xBF", 3) == 0) {
+      b += 3;
+      n -= 3;
+    } else if (n >= 2 && (memcmp(b, "\xFF\xFE", 2) == 0 || memcmp(b, "\xFE\xFF", 2) == 0)) {
+      rd_fail(r, SP_EDATA, 1, 1,
+              "the file is UTF-16 text (it starts with a UTF-16 "
+              "byte-order mark), not UTF-8");
+      sp_error_hint(r->err, "save it as UTF-8 (a spreadsheet's 'CSV UTF-8' export)");
+      return;
+    }
+  }
+  if (r->line_ends == LINE_ENDS_UNDECIDED) {
+    for (size_t i = 0; i < n; i++) {
+      if (b[i] == '\n') {
+        r->line_ends = LINE_ENDS_LF;
+        break;
+      }
+      /* A CR at the chunk's end is decided by the next chunk's first byte;
+       * until then it is fed as is (libcsv ends a row at a CR either way). */
+      if (b[i] == '\r' && i + 1 < n) {
+        r->line_ends = b[i + 1] == '\n' ? LINE_ENDS_LF : LINE_ENDS_CR;
+        break;
+      }
+    }
+  }
+  if (r->line_ends == LINE_ENDS_CR)
+    for (char *q = memchr(b, '\r', n); q; q = memchr(q + 1, '\r', n - (size_t)(q + 1 - b)))
+      *q = '\n';
+  feed_chunk(r, p, b, n);
+}
+
 static sp_status read_common(const char *name, FILE *fp, const char *data, size_t len,
                              const sp_ingest_options *opt_in, sp_table **out, sp_error *err)
 {
@@ -719,38 +911,32 @@ static sp_status read_common(const char *name, FILE *fp, const char *data, size_
   }
   if (opt->decimal_comma) csv_set_delim(&p, ';');
 
+  /* A file is read in chunks of 1 MiB; a buffer is copied through the same
+   * chunks, so both take one path (the reader writes into its chunk). */
   sp_sha256_ctx sha;
   sp_sha256_init(&sha);
   uint64_t total = 0;
-  int first = 1;
-  if (fp) {
-    size_t cap = 1 << 20;
-    char *buf = malloc(cap);
-    if (!buf) r.status = sp_fail(err, SP_ENOMEM, "out of memory");
+  size_t cap = 1 << 20, off = 0;
+  char *buf = malloc(cap);
+  if (!buf) r.status = sp_fail(err, SP_ENOMEM, "out of memory");
+  for (int first = 1; buf; first = 0) {
     size_t got;
-    while (r.status == SP_OK && (got = fread(buf, 1, cap, fp)) > 0) {
-      sp_sha256_update(&sha, buf, got);
-      total += got;
-      const char *b = buf;
-      if (first && got >= 3 && memcmp(b, "\xEF\xBB\xBF", 3) == 0) { b += 3; got -= 3; }
-      first = 0;
-      feed_chunk(&r, &p, b, got);
+    if (fp) {
+      got = fread(buf, 1, cap, fp);
+    } else {
+      got = len - off < cap ? len - off : cap;
+      if (got) memcpy(buf, data + off, got);
+      off += got;
     }
-    if (r.status == SP_OK && ferror(fp))
-      r.status = sp_fail(err, SP_EIO, "%s: read failed: %s", name, strerror(errno));
+    if (got == 0) break;
     /* The hash covers the whole file even when parsing stopped early. */
-    while (r.status != SP_OK && buf && (got = fread(buf, 1, cap, fp)) > 0) {
-      sp_sha256_update(&sha, buf, got);
-      total += got;
-    }
-    free(buf);
-  } else {
-    sp_sha256_update(&sha, data, len);
-    total = len;
-    const char *b = data;
-    if (len >= 3 && memcmp(b, "\xEF\xBB\xBF", 3) == 0) { b += 3; len -= 3; }
-    feed_chunk(&r, &p, b, len);
+    sp_sha256_update(&sha, buf, got);
+    total += got;
+    if (r.status == SP_OK) feed_input(&r, &p, buf, got, first);
   }
+  if (r.status == SP_OK && fp && ferror(fp))
+    r.status = sp_fail(err, SP_EIO, "%s: read failed: %s", name, strerror(errno));
+  free(buf);
   feed_rest(&r, &p);
   sp_sha256_final(&sha, t->sha256);
   t->size = total;
@@ -771,8 +957,19 @@ sp_status sp_table_read(const char *path, const sp_ingest_options *opt, sp_table
   *out = NULL;
   FILE *fp = fopen(path, "rb");
   if (!fp) {
-    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
+    int e = errno;
+    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(e));
+    if (e == ENOENT)
+      sp_error_hint(err, "check the path (it is relative to the current folder)");
+    else if (e == EACCES)
+      sp_error_hint(err, "the file's permissions do not let you read it");
     return SP_EIO;
+  }
+  struct stat st;
+  if (fstat(fileno(fp), &st) == 0 && S_ISDIR(st.st_mode)) {
+    fclose(fp);
+    sp_fail(err, SP_EIO, "%s: is a folder, not a CSV file", path);
+    return sp_error_hint(err, "give the path of a CSV file");
   }
   sp_status s = read_common(path, fp, NULL, 0, opt, out, err);
   fclose(fp);

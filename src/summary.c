@@ -7,6 +7,8 @@
 
 #include <jansson.h>
 
+#include "utf8.h"
+
 void sp_groups_free(sp_group *groups, size_t ngroups)
 {
   if (!groups) return;
@@ -15,6 +17,16 @@ void sp_groups_free(sp_group *groups, size_t ngroups)
     free(groups[i].rows);
   }
   free(groups);
+}
+
+static size_t label_hash(const char *s)
+{
+  uint64_t h = 1469598103934665603ull;
+  for (; *s; s++) {
+    h ^= (unsigned char)*s;
+    h *= 1099511628211ull;
+  }
+  return (size_t)h;
 }
 
 sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
@@ -30,52 +42,82 @@ sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
   if (c->kind != SP_COLUMN_TEXT) {
     sp_fail(err, SP_EDATA, "%s: column '%s' holds numbers; --by needs a text column",
             t->path, c->header);
-    return sp_error_hint(err, "group by a column of lot or batch ids");
+    if (c->unit_text)
+      return sp_error_hint(err, "a column with a unit holds measurements; group by a column "
+                                "of lot or batch ids (a header cell without a unit)");
+    return sp_error_hint(err, "group by a column of lot or batch ids; ids written as numbers "
+                              "are read as text when the column is named in the ingest "
+                              "options' text_columns");
   }
+  /* Each row's group is found through a hash table of the labels (FNV-1a,
+   * open addressing; Fowler, Noll & Vo, http://www.isthe.com/chongo/tech/
+   * comp/fnv/), so that grouping is linear in the rows even when every row
+   * is its own group (--by a part number); groups keep the order in which
+   * their label first appears. */
   sp_group *g = NULL;
-  size_t ng = 0;
-  /* Labels are interned by the reader: equal strings share one pointer, so
-   * grouping compares pointers.  Few groups are expected; a linear scan of
-   * the group list per row is fine and keeps first-appearance order. */
-  size_t *counts = NULL;
-  for (int pass = 0; pass < 2; pass++) {
-    for (size_t r = 0; r < t->nrows; r++) {
-      const char *v = c->text[r];
-      size_t k = 0;
-      while (k < ng && strcmp(g[k].label, v) != 0) k++;
-      if (pass == 0) {
-        if (k == ng) {
-          sp_group *ngp = realloc(g, (ng + 1) * sizeof *g);
-          size_t *nc = realloc(counts, (ng + 1) * sizeof *counts);
-          if (ngp) g = ngp;
-          if (nc) counts = nc;
-          if (!ngp || !nc) goto oom;
-          memset(&g[ng], 0, sizeof g[ng]);
-          counts[ng] = 0;
-          g[ng].label = malloc(strlen(v) + 1);
-          if (!g[ng].label) goto oom;
-          strcpy(g[ng].label, v);
-          ng++;
-        }
-        counts[k]++;
-      } else {
-        /* allocated and checked above under the same status (not followed):
-         * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
-        g[k].rows[g[k].n++] = r;
-      }
-    }
-    if (pass == 0)
+  size_t ng = 0, capg = 0;
+  size_t *gid = malloc((t->nrows ? t->nrows : 1) * sizeof *gid);
+  size_t hcap = 64;
+  size_t *slot = NULL; /* group index + 1, 0 when empty */
+  if (!gid) goto oom;
+  slot = calloc(hcap, sizeof *slot);
+  if (!slot) goto oom;
+  for (size_t r = 0; r < t->nrows; r++) {
+    const char *v = c->text[r];
+    if (2 * (ng + 1) > hcap) { /* keep the table at most half full */
+      size_t ncap = 2 * hcap;
+      size_t *ns = calloc(ncap, sizeof *ns);
+      if (!ns) goto oom;
       for (size_t k = 0; k < ng; k++) {
-        g[k].rows = malloc((counts[k] ? counts[k] : 1) * sizeof *g[k].rows);
-        if (!g[k].rows) goto oom;
+        size_t j = label_hash(g[k].label) & (ncap - 1);
+        while (ns[j])
+          j = (j + 1) & (ncap - 1);
+        ns[j] = k + 1;
       }
+      free(slot);
+      slot = ns;
+      hcap = ncap;
+    }
+    size_t j = label_hash(v) & (hcap - 1);
+    while (slot[j] && strcmp(g[slot[j] - 1].label, v) != 0)
+      j = (j + 1) & (hcap - 1);
+    if (!slot[j]) {
+      if (ng == capg) {
+        size_t nc = capg ? 2 * capg : 8;
+        sp_group *ngp = realloc(g, nc * sizeof *g);
+        if (!ngp) goto oom;
+        g = ngp;
+        capg = nc;
+      }
+      memset(&g[ng], 0, sizeof g[ng]);
+      g[ng].label = malloc(strlen(v) + 1);
+      if (!g[ng].label) goto oom;
+      strcpy(g[ng].label, v);
+      slot[j] = ++ng;
+    }
+    gid[r] = slot[j] - 1;
+    if (!g) goto oom; /* not reached: a slot holds a group (for the analyzer) */
+    g[gid[r]].n++;
   }
-  free(counts);
+  for (size_t k = 0; k < ng; k++) {
+    g[k].rows = malloc((g[k].n ? g[k].n : 1) * sizeof *g[k].rows);
+    if (!g[k].rows) goto oom;
+    g[k].n = 0;
+  }
+  for (size_t r = 0; r < t->nrows; r++) {
+    sp_group *k = &g[gid[r]];
+    /* allocated above for every group (not followed by the analyzer):
+     * NOLINTNEXTLINE(clang-analyzer-core.NullDereference) */
+    k->rows[k->n++] = r;
+  }
+  free(gid);
+  free(slot);
   *groups = g;
   *ngroups = ng;
   return SP_OK;
 oom:
-  free(counts);
+  free(gid);
+  free(slot);
   sp_groups_free(g, ng);
   return sp_fail(err, SP_ENOMEM, "out of memory");
 }
@@ -144,6 +186,10 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
         st = sp_fail(err, SP_EDATA, "%s: no column named '%s'", t->path, columns[i]);
         break;
       }
+      int seen = 0;
+      for (size_t k = 0; k < nc; k++)
+        seen |= cols[k] == c;
+      if (seen) continue; /* named twice (by name and by header, say): described once */
       if (c->kind != SP_COLUMN_NUMERIC) {
         st = sp_fail(err, SP_EDATA, "%s: column '%s' holds text, not numbers", t->path,
                      c->header);
@@ -160,6 +206,35 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
   }
   if (st == SP_OK && nc == 0) {
     st = sp_fail(err, SP_EDATA, "%s: no numeric column to describe", t->path);
+    /* Name the text columns and what made each one text. */
+    char list[600] = "";
+    size_t l = 0;
+    for (size_t i = 0; i < t->ncols && l + 1 < sizeof list; i++) {
+      const sp_column *c = &t->cols[i];
+      if (c->kind != SP_COLUMN_TEXT) continue;
+      const char *first = "";
+      for (size_t k = 0; k < c->n && !first[0]; k++)
+        first = c->text[k];
+      size_t fl = strlen(first);
+      int w;
+      if (by && sp_table_column(t, by) == c)
+        w = snprintf(list + l, sizeof list - l, "%s'%s' (the --by column)", l ? ", " : "",
+                     c->header);
+      else
+        w = snprintf(list + l, sizeof list - l, "%s'%s' (first reading '%.*s')", l ? ", " : "",
+                     c->header, (int)sp_utf8_cut(first, fl < 40 ? fl : 40), first);
+      if (w < 0) break;
+      l += (size_t)w;
+    }
+    if (l >= sizeof list) l = sizeof list - 1;
+    list[sp_utf8_cut(list, l)] = '\0';
+    if (l)
+      sp_error_hint(err,
+                    "the text columns are %s; a unit in the header ('name [mm]') makes "
+                    "a column numeric, so that a bad reading is reported with its line",
+                    list);
+    else
+      sp_error_hint(err, "give --column NAME for the column to describe");
   }
   if (st == SP_OK) {
     s->blocks = calloc(nc, sizeof *s->blocks);
@@ -200,6 +275,25 @@ done:
 /* JSON numbers: NaN has no JSON form, so undefined statistics are null. */
 static json_t *num(double v) { return isfinite(v) ? json_real(v) : json_null(); }
 
+/* A JSON string.  jansson refuses text that is not UTF-8 (json_string
+ * returns NULL, and the member would silently go missing); the reader
+ * refuses such cells, but a file name or a message cut short can still
+ * hold a stray byte, which becomes '?'. */
+static json_t *str(const char *s)
+{
+  json_t *j = json_string(s);
+  if (j) return j;
+  size_t n = strlen(s);
+  char *c = malloc(n + 1);
+  if (!c) return NULL;
+  memcpy(c, s, n + 1);
+  for (size_t i = sp_utf8_check(c, n); i < n; i += 1 + sp_utf8_check(c + i + 1, n - i - 1))
+    c[i] = '?';
+  j = json_string(c);
+  free(c);
+  return j;
+}
+
 char *sp_summary_json(const sp_summary_set *s, sp_error *err)
 {
   const sp_table *t = s->table;
@@ -208,16 +302,16 @@ char *sp_summary_json(const sp_summary_set *s, sp_error *err)
   json_t *skipped = json_array();
   json_t *cols = json_array();
   if (!root || !meta || !skipped || !cols) goto oom;
-  json_object_set_new(root, "format", json_string("scatterprop-summary"));
+  json_object_set_new(root, "format", str("scatterprop-summary"));
   json_object_set_new(root, "version", json_integer(1));
-  json_object_set_new(root, "tool_version", json_string(sp_version()));
-  json_object_set_new(root, "file", json_string(t->path));
+  json_object_set_new(root, "tool_version", str(sp_version()));
+  json_object_set_new(root, "file", str(t->path));
   json_object_set_new(root, "size", json_integer((json_int_t)t->size));
-  json_object_set_new(root, "sha256", json_string(t->sha256));
+  json_object_set_new(root, "sha256", str(t->sha256));
   for (size_t i = 0; i < t->nmeta; i++) {
     json_t *m = json_object();
-    json_object_set_new(m, "key", json_string(t->meta[i].key));
-    json_object_set_new(m, "value", json_string(t->meta[i].value));
+    json_object_set_new(m, "key", str(t->meta[i].key));
+    json_object_set_new(m, "value", str(t->meta[i].value));
     json_object_set_new(m, "line", json_integer(t->meta[i].line));
     json_array_append_new(meta, m);
   }
@@ -227,22 +321,26 @@ char *sp_summary_json(const sp_summary_set *s, sp_error *err)
     json_t *k = json_object();
     json_object_set_new(k, "line", json_integer(t->skipped[i].line));
     json_object_set_new(k, "column", json_integer(t->skipped[i].col));
-    json_object_set_new(k, "reason", json_string(t->skipped[i].reason));
+    json_object_set_new(k, "reason", str(t->skipped[i].reason));
     json_array_append_new(skipped, k);
   }
   json_object_set_new(root, "skipped_rows", skipped);
-  json_object_set_new(root, "group_by", s->by ? json_string(s->by) : json_null());
+  json_object_set_new(root, "group_by", s->by ? str(s->by) : json_null());
+  json_t *text_cols = json_array();
+  for (size_t i = 0; text_cols && i < t->ncols; i++)
+    if (t->cols[i].kind == SP_COLUMN_TEXT) json_array_append_new(text_cols, str(t->cols[i].name));
+  json_object_set_new(root, "text_columns", text_cols);
   for (size_t b = 0; b < s->nblocks; b++) {
     const sp_summary_block *blk = &s->blocks[b];
     json_t *c = json_object();
     json_t *groups = json_array();
-    json_object_set_new(c, "name", json_string(blk->column->name));
-    json_object_set_new(c, "unit", blk->column->unit_text ? json_string(blk->column->unit_text)
-                                                         : json_null());
+    json_object_set_new(c, "name", str(blk->column->name));
+    json_object_set_new(c, "unit",
+                        blk->column->unit_text ? str(blk->column->unit_text) : json_null());
     for (size_t g = 0; g < blk->nrows; g++) {
       const sp_summary_row *r = &blk->rows[g];
       json_t *o = json_object();
-      json_object_set_new(o, "group", r->group ? json_string(r->group) : json_null());
+      json_object_set_new(o, "group", r->group ? str(r->group) : json_null());
       json_object_set_new(o, "rows", json_integer((json_int_t)r->rows));
       json_object_set_new(o, "missing", json_integer((json_int_t)r->missing));
       json_object_set_new(o, "n", json_integer((json_int_t)(r->has_stats ? r->d.n : 0)));
@@ -264,9 +362,9 @@ char *sp_summary_json(const sp_summary_set *s, sp_error *err)
   }
   json_object_set_new(root, "columns", cols);
   json_object_set_new(root, "definitions",
-                      json_string("sd with n-1; skewness m3/m2^1.5 and excess kurtosis "
-                                  "m4/m2^2-3 (NIST/SEMATECH e-Handbook 1.3.5.11); quartiles "
-                                  "Hyndman & Fan (1996) definition 7"));
+                      str("sd with n-1; skewness m3/m2^1.5 and excess kurtosis "
+                          "m4/m2^2-3 (NIST/SEMATECH e-Handbook 1.3.5.11); quartiles "
+                          "Hyndman & Fan (1996) definition 7"));
   char *txt = json_dumps(root, JSON_INDENT(2) | JSON_PRESERVE_ORDER | JSON_REAL_PRECISION(17));
   json_decref(root);
   if (!txt) sp_fail(err, SP_ENOMEM, "out of memory");

@@ -17,6 +17,8 @@
 
 #include <udunits2.h>
 
+#include "utf8.h"
+
 struct sp_unit {
   ut_unit *u;
   char *text; /* owned; what sp_unit_text returns */
@@ -245,6 +247,21 @@ sp_unit *sp_unit_parse(const char *text, sp_error *err)
       return NULL;
     }
     return wrap(one, t, err);
+  }
+  /* udunits2 2.2 ends its input at a 0xFF byte ("m\xff" parses as m), so
+   * bytes that are not text are refused here, never quoted back. */
+  size_t bad = sp_utf8_check(t, len);
+  for (size_t i = 0; i < bad; i++)
+    if (((unsigned char)t[i] < 0x20 && t[i] != '\t') || t[i] == 0x7F) {
+      bad = i;
+      break;
+    }
+  if (bad < len) {
+    sp_fail(err, SP_EDATA, "bad unit syntax: byte 0x%02X at position %zu of the unit is %s",
+            (unsigned char)t[bad], bad + 1,
+            (unsigned char)t[bad] >= 0x80 ? "not valid UTF-8" : "a control character");
+    free(t);
+    return NULL;
   }
   const char *trap = syntax_trap(t);
   if (trap) {

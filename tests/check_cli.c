@@ -110,6 +110,50 @@ START_TEST(test_summary_of_text_column_refused)
 }
 END_TEST
 
+START_TEST(test_summary_options)
+{
+  /* Lots numbered 117 and 131 group with --by: the column is read as text. */
+  write_file(path_in("lots.csv"), "lot,d [mm]\n117,1\n131,2\n117,3\n131,5\n");
+  ck_assert_int_eq(cli("summary lots.csv --by lot"), 0);
+  ASSERT_HAS(out_text, "text columns (not described): lot\n");
+  ASSERT_HAS(out_text, "  117          2    0    2.00    1.41");
+  ASSERT_HAS(out_text, "  131          2    0    3.50    2.12");
+  /* A column asked for twice is described once. */
+  ck_assert_int_eq(cli("summary lots.csv --column d --column 'd [mm]'"), 0);
+  ck_assert_ptr_null(strstr(strstr(out_text, "d  [mm]") + 1, "d  [mm]"));
+  /* Usage errors: an empty name, --by twice. */
+  ck_assert_int_eq(cli("summary lots.csv --column ''"), 2);
+  ASSERT_HAS(err_text, "--column needs a column name");
+  ck_assert_int_eq(cli("summary lots.csv --by lot --by d"), 2);
+  ASSERT_HAS(err_text, "--by is given twice ('lot', 'd')");
+  /* A folder is an I/O error with a hint. */
+  ck_assert_int_eq(cli("summary ."), 6);
+  ASSERT_HAS(err_text, "scatterprop: error: .: is a folder, not a CSV file\n  hint: ");
+  /* --decimal-comma: ';' separates cells, ',' is the decimal sign. */
+  write_file(path_in("dc.csv"), "d [mm];F [N]\n1,5;2,5\n3,0;NA\n");
+  ck_assert_int_eq(cli("summary dc.csv --decimal-comma --json"), 0);
+  ASSERT_HAS(out_text, "\"mean\": 2.25");
+  ASSERT_HAS(out_text, "\"missing\": 1");
+  ck_assert_int_eq(cli("summary dc.csv"), 3);
+  ASSERT_HAS(err_text, "give --decimal-comma");
+  /* Long lot ids are printed whole (cut at 24 characters, these two would
+   * read the same), and a UTF-8 id is padded by characters, not bytes. */
+  write_file(path_in("long.csv"), "lot,d [mm]\nSUPPLIER-A-2024-11-03-COIL-0001,1\n"
+                                  "SUPPLIER-A-2024-11-03-COIL-0002,2\nCharge-\xC3\x84,3\n");
+  ck_assert_int_eq(cli("summary long.csv --by lot"), 0);
+  ASSERT_HAS(out_text, "  SUPPLIER-A-2024-11-03-COIL-0001     1    0");
+  ASSERT_HAS(out_text, "  SUPPLIER-A-2024-11-03-COIL-0002     1    0");
+  ASSERT_HAS(out_text, "  Charge-\xC3\x84"
+                       "                            1    0"); /* 23 + 5 blanks */
+  /* Output that cannot be written is an I/O error, not a success. */
+  if (access("/dev/full", W_OK) == 0) {
+    ck_assert_int_eq(cli("summary lots.csv --json >/dev/full"), 6);
+    ASSERT_HAS(err_text, "scatterprop: error: cannot write the standard output: ");
+    ck_assert_int_eq(cli("--help >/dev/full"), 6);
+  }
+}
+END_TEST
+
 static Suite *cli_suite(void)
 {
   Suite *s = suite_create("cli");
@@ -122,6 +166,7 @@ static Suite *cli_suite(void)
   tcase_add_test(tc, test_demo_summary_by_lot);
   tcase_add_test(tc, test_missing_values_counted);
   tcase_add_test(tc, test_summary_of_text_column_refused);
+  tcase_add_test(tc, test_summary_options);
   suite_add_tcase(s, tc);
   return s;
 }

@@ -42,6 +42,24 @@ static void read_fails(const char *csv, const sp_ingest_options *opt, sp_status 
   ck_assert_msg(strstr(err.msg, want) != NULL, "message '%s' lacks '%s'", err.msg, want);
 }
 
+/* As read_fails, and the hint must contain hint_want. */
+static void read_fails_hint(const char *csv, const sp_ingest_options *opt, sp_status code,
+                            long line, long col, const char *want, const char *hint_want)
+{
+  sp_error err;
+  sp_error_clear(&err);
+  sp_table *t = NULL;
+  sp_status s = sp_table_read_buffer("t.csv", csv, strlen(csv), opt, &t, &err);
+  char buf[2048];
+  sp_error_format(&err, buf, sizeof buf);
+  ck_assert_msg(s == code, "status %d, want %d (%s)", (int)s, (int)code, buf);
+  ck_assert_ptr_null(t);
+  ck_assert_msg(err.line == line && err.col == col, "position %ld:%ld, want %ld:%ld (%s)", err.line,
+                err.col, line, col, buf);
+  ck_assert_msg(strstr(err.msg, want) != NULL, "message '%s' lacks '%s'", err.msg, want);
+  ck_assert_msg(strstr(err.hint, hint_want) != NULL, "hint '%s' lacks '%s'", err.hint, hint_want);
+}
+
 START_TEST(test_basic_units_and_metadata)
 {
   sp_table *t = read_ok("# gauge: MC-07\n# lot: 24-117\n# invented demo data\n"
@@ -375,7 +393,9 @@ START_TEST(test_nul_byte)
   sp_table *t = NULL;
   ck_assert_int_eq(sp_table_read_buffer("t.csv", csv, sizeof csv - 1, NULL, &t, &err), SP_EDATA);
   ck_assert_ptr_nonnull(strstr(err.msg, "NUL byte"));
+  ck_assert_ptr_nonnull(strstr(err.hint, "UTF-16"));
   ck_assert_int_eq(err.line, 2);
+  ck_assert_int_eq(err.col, 1);
 }
 END_TEST
 
@@ -462,6 +482,244 @@ START_TEST(test_many_rows_chunked)
 }
 END_TEST
 
+START_TEST(test_utf8)
+{
+  /* Well-formed UTF-8 (RFC 3629) is kept as it is: a micro sign in a unit,
+   * an umlaut in a lot id and in metadata. */
+  sp_table *t = read_ok("# Pr\xC3\xBC"
+                        "fer: J. M\xC3\xBC"
+                        "ller\nlot,d [\xC2\xB5m]\n"
+                        "Charge-\xC3\x84,12.5\n",
+                        NULL);
+  ck_assert_str_eq(t->cols[1].unit_text, "\xC2\xB5m");
+  ck_assert_str_eq(t->cols[0].text[0], "Charge-\xC3\x84");
+  ck_assert_str_eq(sp_table_meta(t, "Pr\xC3\xBC"
+                                    "fer"),
+                   "J. M\xC3\xBC"
+                   "ller");
+  sp_table_free(t);
+  /* Latin-1 bytes (a micro sign 0xB5, a degree sign 0xB0) are refused where
+   * they stand, and the message does not quote them back. */
+  read_fails_hint("d [\xB5m]\n1\n", NULL, SP_EDATA, 1, 1,
+                  "header cell 1 is not valid UTF-8 (byte 0xB5 at byte 4 of the cell)",
+                  "save the file as UTF-8");
+  read_fails_hint("# temp: 20 \xB0"
+                  "C\nd [mm]\n1\n",
+                  NULL, SP_EDATA, 1, 1,
+                  "'#' metadata line is not valid UTF-8 (byte 0xB0 at byte 12", "UTF-8");
+  read_fails_hint("lot,d [mm]\nA,1\nB\xE9,2\n", NULL, SP_EDATA, 3, 1,
+                  "the cell is not valid UTF-8 (byte 0xE9 at byte 2 of the cell; column \"lot\")",
+                  "UTF-8");
+  read_fails("lot,d [mm]\nA,1\nB,2\xFF\n", NULL, SP_EDATA, 3, 2,
+             "the cell is not valid UTF-8 (byte 0xFF at byte 2 of the cell; column \"d [mm]\")");
+  /* Ill-formed sequences of RFC 3629 section 4: an overlong '/' (C0 AF), a
+   * surrogate (ED A0 80), a code point above U+10FFFF (F4 90 80 80), a lone
+   * continuation byte, a sequence cut short. */
+  read_fails("lot\n\xC0\xAF\n", NULL, SP_EDATA, 2, 1, "byte 0xC0 at byte 1");
+  read_fails("lot\nx\xED\xA0\x80\n", NULL, SP_EDATA, 2, 1, "byte 0xED at byte 2");
+  read_fails("lot\n\xF4\x90\x80\x80\n", NULL, SP_EDATA, 2, 1, "byte 0xF4 at byte 1");
+  read_fails("lot\nab\x80\n", NULL, SP_EDATA, 2, 1, "byte 0x80 at byte 3");
+  read_fails("lot\nab\xE2\x82\n", NULL, SP_EDATA, 2, 1, "byte 0xE2 at byte 3");
+  /* The largest code point, U+10FFFF (F4 8F BF BF), is well formed. */
+  t = read_ok("lot\n\xF4\x8F\xBF\xBF\n", NULL);
+  sp_table_free(t);
+  /* With skip_bad_rows such a row is skipped and listed like any bad row;
+   * a column that is not kept is not looked at. */
+  sp_ingest_options o;
+  sp_ingest_options_init(&o);
+  o.skip_bad_rows = 1;
+  t = read_ok("lot,d [mm]\nA,1\nB\xE9,2\nC,3\n", &o);
+  ck_assert_uint_eq(t->nrows, 2);
+  ck_assert_uint_eq(t->nskipped, 1);
+  ck_assert_int_eq(t->skipped[0].line, 3);
+  ck_assert_int_eq(t->skipped[0].col, 1);
+  ck_assert_ptr_nonnull(strstr(t->skipped[0].reason, "not valid UTF-8"));
+  sp_table_free(t);
+  const char *only_d[] = {"d"};
+  sp_ingest_options_init(&o);
+  o.columns = only_d;
+  o.ncolumns = 1;
+  t = read_ok("lot,d [mm]\nA,1\nB\xE9,2\n", &o);
+  ck_assert_uint_eq(t->nrows, 2);
+  sp_table_free(t);
+}
+END_TEST
+
+START_TEST(test_utf16_refused)
+{
+  /* UTF-16 little- and big-endian byte-order marks (FF FE, FE FF). */
+  static const char le[] = "\xFF\xFEx\0\n\0";
+  static const char be[] = "\xFE\xFF\0x\0\n";
+  const char *data[2] = {le, be};
+  for (int k = 0; k < 2; k++) {
+    sp_error err;
+    sp_error_clear(&err);
+    sp_table *t = NULL;
+    ck_assert_int_eq(sp_table_read_buffer("u.csv", data[k], 6, NULL, &t, &err), SP_EDATA);
+    ck_assert_ptr_null(t);
+    ck_assert_int_eq(err.line, 1);
+    ck_assert_ptr_nonnull(strstr(err.msg, "UTF-16"));
+    ck_assert_ptr_nonnull(strstr(err.hint, "UTF-8"));
+  }
+}
+END_TEST
+
+START_TEST(test_cr_line_ends)
+{
+  /* Bare CR line ends (old spreadsheet exports): metadata, header and rows
+   * as with LF, and errors on the right line. */
+  sp_table *t = read_ok("# gauge: MC-07\r\rpart,d [mm]\r\"a\rb\",1.5\rS2,2\r", NULL);
+  ck_assert_str_eq(sp_table_meta(t, "gauge"), "MC-07");
+  ck_assert_int_eq(t->header_line, 3);
+  ck_assert_uint_eq(t->nrows, 2);
+  ck_assert_str_eq(t->cols[0].text[0], "a\nb"); /* a bare CR in a quoted cell reads as LF */
+  ck_assert(t->cols[1].values[1] == 2.0);
+  sp_table_free(t);
+  read_fails("d [mm]\r1\r\r2\rx\r", NULL, SP_EDATA, 5, 1, "'x' is not a number");
+  /* CRLF files keep their line numbers (a CR before each LF is no line). */
+  read_fails("d [mm]\r\n1\r\n\r\nx\r\n", NULL, SP_EDATA, 4, 1, "'x' is not a number");
+  /* Over the 1 MiB chunk, in a file. */
+  char path[] = "/tmp/sp_ingest_cr_XXXXXX";
+  int fd = mkstemp(path);
+  FILE *fp = fdopen(fd, "w");
+  fprintf(fp, "# k: v\rd [mm]\r");
+  for (int i = 0; i < 200000; i++)
+    fprintf(fp, "%d.5\r", i);
+  fprintf(fp, "oops\r");
+  fclose(fp);
+  sp_error err;
+  sp_error_clear(&err);
+  ck_assert_int_eq(sp_table_read(path, NULL, &t, &err), SP_EDATA);
+  ck_assert_int_eq(err.line, 200003);
+  unlink(path);
+}
+END_TEST
+
+START_TEST(test_text_columns)
+{
+  /* Lot ids written as numbers are read as text when the caller names the
+   * column; a column with a unit stays numeric; unknown names are ignored. */
+  const char *csv = "lot,batch,d [mm]\n117,007,1.5\n131,007,2.5\n117,,3.5\n";
+  const char *names[] = {"lot", "d", "nosuch", "batch"};
+  sp_ingest_options o;
+  sp_ingest_options_init(&o);
+  o.text_columns = names;
+  o.ntext_columns = 4;
+  sp_table *t = read_ok(csv, &o);
+  ck_assert_int_eq(t->cols[0].kind, SP_COLUMN_TEXT);
+  ck_assert_str_eq(t->cols[0].text[1], "131");
+  ck_assert_int_eq(t->cols[1].kind, SP_COLUMN_TEXT);
+  ck_assert_str_eq(t->cols[1].text[0], "007"); /* as written, leading zeros kept */
+  ck_assert_str_eq(t->cols[1].text[2], "");
+  ck_assert_uint_eq(t->cols[1].nmissing, 1);
+  ck_assert_int_eq(t->cols[2].kind, SP_COLUMN_NUMERIC);
+  sp_table_free(t);
+  t = read_ok(csv, NULL);
+  ck_assert_int_eq(t->cols[0].kind, SP_COLUMN_NUMERIC);
+  sp_table_free(t);
+}
+END_TEST
+
+START_TEST(test_separator_mismatch)
+{
+  /* A ';'-separated export read without --decimal-comma, and a
+   * ','-separated file read with it: refused at the header, not read as one
+   * text column or, worse, as one column of wrong numbers (1,2 -> 1.2). */
+  read_fails_hint("part;d [mm]\nA1;2,001\n", NULL, SP_EDATA, 1, 1,
+                  "the header is one cell, 'part;d [mm]', that holds ';'", "--decimal-comma");
+  read_fails_hint("a [mm];b [N]\n1;2\n", NULL, SP_EDATA, 1, 1, "a unit goes in brackets at the end",
+                  "give --decimal-comma");
+  sp_ingest_options o;
+  sp_ingest_options_init(&o);
+  o.decimal_comma = 1;
+  read_fails_hint("x,y\n1,2\n", &o, SP_EDATA, 1, 1,
+                  "with --decimal-comma, ';' separates the cells, but the header is one cell, "
+                  "'x,y', that holds ','",
+                  "leave out --decimal-comma");
+  read_fails_hint("a [mm],b [N]\n1,2\n", &o, SP_EDATA, 1, 1, "a unit goes in brackets at the end",
+                  "leave it out");
+  /* A decimal-comma number in a ','-separated file is a ragged row, whose
+   * hint names the option. */
+  read_fails_hint("d [mm]\n1,5\n", NULL, SP_EDATA, 2, 2, "this row has 2 fields",
+                  "give --decimal-comma");
+}
+END_TEST
+
+START_TEST(test_hints)
+{
+  /* Every error says what to do about it. */
+  read_fails_hint("d [mpa]\n1\n", NULL, SP_EDATA, 1, 1, "unknown unit 'mpa'", "case matters");
+  read_fails_hint("d [N.]\n1\n", NULL, SP_EDATA, 1, 1, "bad unit syntax", "quotients");
+  read_fails_hint("d [mm] x\n1\n", NULL, SP_EDATA, 1, 1, "a unit goes in brackets at the end",
+                  "'load [N]'");
+  read_fails_hint("d [mm],\n1,\n", NULL, SP_EDATA, 1, 2, "header cell 2 has no column name",
+                  "a separator at the end of the header line");
+  read_fails_hint("d [mm],d [N]\n1,2\n", NULL, SP_EDATA, 1, 2, "column name 'd' is used twice",
+                  "its own name");
+  read_fails_hint("d [mm],e [N]\n1,2\n# later note\n", NULL, SP_EDATA, 3, 1, "this row has 1 field",
+                  "'#' lines are metadata only before the header");
+  read_fails_hint("d [mm]\n1\n# later note\n", NULL, SP_EDATA, 3, 1,
+                  "'# later note' is not a number", "move it above the header");
+  read_fails_hint("d [mm]\n1\n2.01 mm\n", NULL, SP_EDATA, 3, 1, "'2.01 mm' is not a number",
+                  "a unit goes in the header cell ('d [unit]'), not after each reading");
+  read_fails_hint("F\n120\n118N\n", NULL, SP_EDATA, 3, 1, "'118N' is not a number",
+                  "a unit goes in the header cell");
+  read_fails_hint("F [N]\n\"1,234.5\"\n", NULL, SP_EDATA, 2, 1, "'1,234.5' is not a number",
+                  "thousands separators are not read");
+  read_fails_hint("F [N]\nO.52\n", NULL, SP_EDATA, 2, 1, "'O.52' is not a number",
+                  "write a missing reading as an empty cell or NA");
+  read_fails_hint("d [mm],note\n1,\"open\n", NULL, SP_EDATA, 2, 2, "never closed", "doubled");
+  read_fails_hint("d [mm],note\n1,a\"b\n", NULL, SP_EDATA, 2, 2, "malformed quoting", "doubled");
+}
+END_TEST
+
+START_TEST(test_folder_refused)
+{
+  sp_error err;
+  sp_error_clear(&err);
+  sp_table *t = NULL;
+  ck_assert_int_eq(sp_table_read("/tmp", NULL, &t, &err), SP_EIO);
+  ck_assert_ptr_null(t);
+  ck_assert_str_eq(err.msg, "/tmp: is a folder, not a CSV file");
+  ck_assert_ptr_nonnull(strstr(err.hint, "CSV file"));
+  ck_assert_int_eq(sp_table_read("/nonexistent/x.csv", NULL, &t, &err), SP_EIO);
+  ck_assert_ptr_nonnull(strstr(err.hint, "check the path"));
+}
+END_TEST
+
+START_TEST(test_buffer_over_chunks)
+{
+  /* The buffer reader goes through the same 1 MiB chunks as the file
+   * reader: the same table and hash from both, rows straddling the edges. */
+  size_t rows = 150000, cap = rows * 24 + 64, len = 0;
+  char *csv = malloc(cap);
+  len += (size_t)snprintf(csv + len, cap - len, "# k: v\nlot,x [mm]\n");
+  for (size_t i = 0; i < rows; i++)
+    len += (size_t)snprintf(csv + len, cap - len, "L%zu,%zu.5\n", i % 7, i);
+  ck_assert_uint_gt(len, 1u << 20);
+  char path[] = "/tmp/sp_ingest_buf_XXXXXX";
+  int fd = mkstemp(path);
+  ck_assert_int_eq(write(fd, csv, len), (ssize_t)len);
+  close(fd);
+  sp_error err;
+  sp_error_clear(&err);
+  sp_table *a = NULL, *b = NULL;
+  ck_assert_int_eq(sp_table_read_buffer("b.csv", csv, len, NULL, &a, &err), SP_OK);
+  ck_assert_int_eq(sp_table_read(path, NULL, &b, &err), SP_OK);
+  ck_assert_uint_eq(a->nrows, rows);
+  ck_assert_uint_eq(b->nrows, rows);
+  ck_assert_str_eq(a->sha256, b->sha256);
+  ck_assert_uint_eq(a->size, len);
+  for (size_t i = 0; i < rows; i++)
+    ck_assert(a->cols[1].values[i] == b->cols[1].values[i]);
+  ck_assert(a->cols[1].values[rows - 1] == (double)(rows - 1) + 0.5);
+  sp_table_free(a);
+  sp_table_free(b);
+  unlink(path);
+  free(csv);
+}
+END_TEST
+
 START_TEST(test_parse_double_strict)
 {
   sp_error err;
@@ -520,6 +778,14 @@ static Suite *ingest_suite(void)
   tcase_add_test(tc, test_file_and_sha256);
   tcase_add_test(tc, test_many_rows_chunked);
   tcase_add_test(tc, test_parse_double_strict);
+  tcase_add_test(tc, test_utf8);
+  tcase_add_test(tc, test_utf16_refused);
+  tcase_add_test(tc, test_cr_line_ends);
+  tcase_add_test(tc, test_text_columns);
+  tcase_add_test(tc, test_separator_mismatch);
+  tcase_add_test(tc, test_hints);
+  tcase_add_test(tc, test_folder_refused);
+  tcase_add_test(tc, test_buffer_over_chunks);
   suite_add_tcase(s, tc);
   return s;
 }

@@ -344,6 +344,18 @@ START_TEST(test_parse_errors)
                      "(udunits2 reads 'm1/2' as m/2; exponents are integers)");
   expect_parse_error("m^0.5", "bad unit syntax 'm^0.5': a non-integer exponent");
   expect_parse_error("m**1.5", "bad unit syntax 'm**1.5': a non-integer exponent");
+  /* udunits2 2.2 stops reading at a 0xFF byte, so "m\xff" would parse as m
+   * and "\xff" alone as 1; bytes that are not text are refused first. */
+  expect_parse_error("m\xff", "bad unit syntax: byte 0xFF at position 2 of the unit is not "
+                              "valid UTF-8");
+  expect_parse_error("\xff",
+                     "bad unit syntax: byte 0xFF at position 1 of the unit is not valid UTF-8");
+  expect_parse_error("\xb5m",
+                     "bad unit syntax: byte 0xB5 at position 1 of the unit is not valid UTF-8");
+  expect_parse_error("m\x01m",
+                     "bad unit syntax: byte 0x01 at position 2 of the unit is a control character");
+  sp_unit *um = parse_ok("\xC2\xB5m"); /* the micro sign in UTF-8 */
+  sp_unit_free(um);
 
   sp_error err;
   sp_error_clear(&err);

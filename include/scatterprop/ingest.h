@@ -1,18 +1,22 @@
 /* scatterprop ingest: inspection CSV files into typed columns.
  *
  * RFC 4180 CSV (Shafranovich 2005) read through libcsv: quoted fields,
- * embedded separators and newlines, CRLF or LF line ends, an optional UTF-8
- * byte-order mark.  Before the header, lines starting with '#' are metadata
+ * embedded separators and newlines, CRLF, LF or bare CR line ends (the kind
+ * of the file's first line end holds for the whole file), an optional UTF-8
+ * byte-order mark.  Text is UTF-8: a header cell, a '#' line or a kept cell
+ * that is not well-formed UTF-8 is an error at its position (a UTF-16 file
+ * is refused at its byte-order mark).  Before the header, lines starting with '#' are metadata
  * ("# gauge: MC-07" becomes key "gauge", value "MC-07"; a line without a
  * colon is kept with an empty key) and blank lines are skipped.  Header
  * cells may carry a unit in brackets ("wire_d [mm]").
  *
  * Column kinds: a column whose header has a unit is numeric; a column
  * without a unit is numeric when its first non-missing cell is a number and
- * text otherwise.  A numeric column whose later cell is not a number is an
- * error at that cell (or, with skip_bad_rows, the row is skipped and
- * listed).  Empty cells and the text NA are missing: counted, flagged, never
- * turned into a number.
+ * text otherwise, unless the caller names it in text_columns (lot ids
+ * written as numbers, 117 or 24117, for grouping).  A numeric column whose
+ * later cell is not a number is an error at that cell (or, with
+ * skip_bad_rows, the row is skipped and listed).  Empty cells and the text
+ * NA are missing: counted, flagged, never turned into a number.
  *
  * The file is read in one streaming pass; numeric columns cost 8 bytes per
  * row plus one flag byte. */
@@ -91,6 +95,11 @@ typedef struct {
   int skip_bad_rows;      /* skip and list bad rows instead of failing */
   const char *const *columns; /* keep only these columns (by name), or NULL for all */
   size_t ncolumns;
+  /* Read these columns (by name or whole header cell) as text whatever
+   * their cells, when their header has no unit; a column with a unit stays
+   * numeric.  Names that are not columns are ignored.  NULL for none. */
+  const char *const *text_columns;
+  size_t ntext_columns;
 } sp_ingest_options;
 
 /* Default options: strict, '.' decimal, ',' separator, all columns. */

@@ -8,26 +8,26 @@
 
 void cli_summary_help(FILE *out)
 {
-  fprintf(out,
-          "Usage: scatterprop summary FILE.csv [--column NAME]... [--by COLUMN] [--json]\n"
-          "                           [--decimal-comma] [--skip-bad-rows]\n"
-          "\n"
-          "Reads an inspection CSV (header 'name [unit]', '#' metadata lines before it),\n"
-          "checks every cell, and describes each numeric column: n, missing, mean,\n"
-          "standard deviation (n-1), min, quartiles, max, skewness and excess kurtosis.\n"
-          "\n"
-          "Options:\n"
-          "  --column NAME     describe only this column (repeatable; default: all numeric)\n"
-          "  --by COLUMN       one line per value of this text column (a lot id), then pooled\n"
-          "  --json            print the summary as JSON (full precision) instead of a table\n"
-          "  --decimal-comma   ',' is the decimal separator and ';' separates cells\n"
-          "  --skip-bad-rows   skip rows with a bad cell or the wrong number of cells,\n"
-          "                    and list every one skipped (default: stop at the first)\n"
-          "  --help            show this help\n"
-          "\n"
-          "Missing readings are empty cells or NA; they are counted, never read as zero.\n"
-          "Exit codes: 0 ok, 2 usage, 3 bad input data, 6 I/O error.\n"
-          "\n");
+  fprintf(out, "Usage: scatterprop summary FILE.csv [--column NAME]... [--by COLUMN] [--json]\n"
+               "                           [--decimal-comma] [--skip-bad-rows]\n"
+               "\n"
+               "Reads an inspection CSV (header 'name [unit]', '#' metadata lines before it),\n"
+               "checks every cell, and describes each numeric column: n, missing, mean,\n"
+               "standard deviation (n-1), min, quartiles, max, skewness and excess kurtosis.\n"
+               "\n"
+               "Options:\n"
+               "  --column NAME     describe only this column (repeatable; default: all numeric)\n"
+               "  --by COLUMN       one line per value of this column (a lot id, read as text\n"
+               "                    unless it has a unit), then the pooled line\n"
+               "  --json            print the summary as JSON (full precision) instead of a table\n"
+               "  --decimal-comma   ',' is the decimal separator and ';' separates cells\n"
+               "  --skip-bad-rows   skip rows with a bad cell or the wrong number of cells,\n"
+               "                    and list every one skipped (default: stop at the first)\n"
+               "  --help            show this help\n"
+               "\n"
+               "Missing readings are empty cells or NA; they are counted, never read as zero.\n"
+               "Exit codes: 0 ok, 2 usage, 3 bad input data, 6 I/O error.\n"
+               "\n");
   cli_print_caution(out);
 }
 
@@ -43,6 +43,16 @@ static void put_shape(FILE *out, double v)
 {
   if (!isfinite(v)) fprintf(out, " %6s", "-");
   else fprintf(out, " %6.2f", v);
+}
+
+/* Columns a UTF-8 text takes on a terminal: its characters (the bytes that
+ * are not continuation bytes; the reader has checked it is UTF-8). */
+static int text_width(const char *s)
+{
+  int w = 0;
+  for (; *s; s++)
+    w += ((unsigned char)*s & 0xC0) != 0x80;
+  return w;
 }
 
 static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_block *b)
@@ -64,10 +74,11 @@ static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_blo
                    : 12;
     if (need > width) width = need;
   }
+  /* Group labels are never cut: two lots that differ only at the end of a
+   * long id must stay apart. */
   int gw = 8;
   for (size_t g = 0; g < b->nrows; g++)
-    if (b->rows[g].group && (int)strlen(b->rows[g].group) > gw) gw = (int)strlen(b->rows[g].group);
-  if (gw > 24) gw = 24;
+    if (b->rows[g].group && text_width(b->rows[g].group) > gw) gw = text_width(b->rows[g].group);
   fprintf(out, "  %-*s %5s %4s %*s %*s %*s %*s %*s %*s %*s %6s %6s\n", gw, "group", "n",
           "miss", width, "mean", width, "sd", width, "min", width, "q1", width, "median",
           width, "q3", width, "max", "skew", "exkurt");
@@ -75,7 +86,8 @@ static void print_block(FILE *out, const sp_summary_set *s, const sp_summary_blo
     const sp_summary_row *r = &b->rows[g];
     const char *label = r->group ? (r->group[0] ? r->group : "(blank)")
                                  : (s->by ? "(pooled)" : "(all)");
-    fprintf(out, "  %-*.*s %5zu %4zu", gw, gw, label, r->has_stats ? r->d.n : 0, r->missing);
+    fprintf(out, "  %s%*s %5zu %4zu", label, gw - text_width(label), "", r->has_stats ? r->d.n : 0,
+            r->missing);
     if (!r->has_stats) {
       fprintf(out, "  every value is missing\n");
       continue;
@@ -106,9 +118,17 @@ int cli_summary_run(int argc, char **argv)
     const char *v;
     int m;
     if ((m = cli_opt_value("summary", argc, argv, &i, "--column", &v, &rc)) != 0) {
-      if (m > 0) columns[ncolumns++] = v;
+      if (m > 0 && !v[0])
+        rc = cli_usage("summary", "--column needs a column name");
+      else if (m > 0)
+        columns[ncolumns++] = v;
     } else if ((m = cli_opt_value("summary", argc, argv, &i, "--by", &v, &rc)) != 0) {
-      if (m > 0) by = v;
+      if (m > 0 && !v[0])
+        rc = cli_usage("summary", "--by needs a column name");
+      else if (m > 0 && by)
+        rc = cli_usage("summary", "--by is given twice ('%s', '%s')", by, v);
+      else if (m > 0)
+        by = v;
     } else if (cli_opt_flag(argv, i, "--json")) {
       json = 1;
     } else if (cli_opt_flag(argv, i, "--decimal-comma")) {
@@ -126,7 +146,12 @@ int cli_summary_run(int argc, char **argv)
   if (rc == CLI_OK && !file) rc = cli_usage("summary", "no CSV file given");
   if (rc != CLI_OK) { free(columns); return rc; }
 
-  /* Read only the columns asked for, plus the grouping column. */
+  /* Read only the columns asked for, plus the grouping column, which is
+   * read as text when it has no unit (lot ids written as numbers). */
+  if (by) {
+    opt.text_columns = &by;
+    opt.ntext_columns = 1;
+  }
   if (ncolumns > 0) {
     if (by) columns[ncolumns] = by;
     opt.columns = columns;
@@ -155,6 +180,13 @@ int cli_summary_run(int argc, char **argv)
       if (t->meta[i].key[0]) printf("  %s: %s\n", t->meta[i].key, t->meta[i].value);
       else printf("  # %s\n", t->meta[i].value);
     }
+    const char *sep = "text columns (not described): ";
+    for (size_t i = 0; i < t->ncols; i++)
+      if (t->cols[i].kind == SP_COLUMN_TEXT) {
+        printf("%s%s", sep, t->cols[i].name);
+        sep = ", ";
+      }
+    if (sep[0] == ',') putchar('\n');
     for (size_t b = 0; b < set->nblocks; b++) print_block(stdout, set, &set->blocks[b]);
     if (t->nskipped) {
       printf("\n%zu row%s skipped (--skip-bad-rows):\n", t->nskipped, t->nskipped == 1 ? "" : "s");

@@ -1,5 +1,6 @@
 /* scatterprop command-line tool: parses arguments, calls the library,
  * prints.  No numerics and no file formats live here. */
+#include <errno.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -42,6 +43,22 @@ static void main_help(FILE *out)
   cli_print_caution(out);
 }
 
+/* Output that could not be written is an I/O error (exit 6), never a
+ * success: 'scatterprop summary x.csv --json > out.json' on a full disk
+ * must not exit 0 with half a document. */
+static int finish(int rc)
+{
+  if (fflush(stdout) != 0 || ferror(stdout)) {
+    int e = errno;
+    fprintf(stderr,
+            "scatterprop: error: cannot write the standard output: %s\n"
+            "  hint: check the free space or the device it is redirected to\n",
+            e ? strerror(e) : "write error");
+    return rc == CLI_OK ? CLI_IO : rc;
+  }
+  return rc;
+}
+
 int main(int argc, char **argv)
 {
   gsl_set_error_handler_off();
@@ -52,22 +69,22 @@ int main(int argc, char **argv)
   const char *cmd = argv[1];
   if (strcmp(cmd, "--help") == 0 || strcmp(cmd, "-h") == 0 || strcmp(cmd, "help") == 0) {
     main_help(stdout);
-    return CLI_OK;
+    return finish(CLI_OK);
   }
   if (strcmp(cmd, "--version") == 0) {
     printf("scatterprop %s (git %s, %s, GSL %s)\n", sp_version(), sp_git_revision(),
            sp_build_compiler(), sp_build_gsl_version());
-    return CLI_OK;
+    return finish(CLI_OK);
   }
   for (size_t i = 0; i < ncommands; i++) {
     if (strcmp(cmd, commands[i].name) != 0) continue;
     for (int a = 2; a < argc; a++) {
       if (strcmp(argv[a], "--help") == 0 || strcmp(argv[a], "-h") == 0) {
         commands[i].help(stdout);
-        return CLI_OK;
+        return finish(CLI_OK);
       }
     }
-    return commands[i].run(argc - 1, argv + 1);
+    return finish(commands[i].run(argc - 1, argv + 1));
   }
   fprintf(stderr, "scatterprop: error: unknown command '%s'\n"
                   "  hint: run 'scatterprop --help' for the list of commands\n", cmd);
