@@ -5,6 +5,7 @@
  * renamed into place. */
 #include "scatterprop/archive.h"
 
+#include <dirent.h>
 #include <errno.h>
 #include <stdlib.h>
 #include <string.h>
@@ -362,6 +363,47 @@ static sp_status write_plan(const plan *p, const char *dir_in, int overwrite, sp
     remove_files(p, tmp);
     if (exists) make_dir(dir); /* put back the empty folder that was there */
   }
+  return s;
+}
+
+sp_status sp_archive_check(const char *dir_in, int overwrite, sp_error *err)
+{
+  char dir[4096];
+  size_t n = dir_in ? strlen(dir_in) : 0;
+  while (n > 1 && dir_in[n - 1] == '/')
+    n--;
+  if (n == 0 || n >= sizeof dir - 16) return sp_fail(err, SP_EUSAGE, "archive: bad folder name");
+  memcpy(dir, dir_in, n);
+  dir[n] = '\0';
+  struct stat st;
+  if (stat(dir, &st) == 0) {
+    if (!S_ISDIR(st.st_mode)) return sp_fail(err, SP_EIO, "%s: exists and is not a folder", dir);
+    if (overwrite) return SP_OK;
+    DIR *d = opendir(dir);
+    if (!d) return sp_fail(err, SP_EIO, "%s: cannot read the folder: %s", dir, strerror(errno));
+    int empty = 1;
+    for (struct dirent *e; empty && (e = readdir(d)) != NULL;)
+      if (strcmp(e->d_name, ".") != 0 && strcmp(e->d_name, "..") != 0) empty = 0;
+    closedir(d);
+    if (empty) return SP_OK;
+    sp_fail(err, SP_EIO,
+            "%s: the archive folder exists and is not empty; refusing to "
+            "overwrite it",
+            dir);
+    return sp_error_hint(err, "give --force to replace its files, or choose another folder");
+  }
+  if (errno != ENOENT) return sp_fail(err, SP_EIO, "%s: %s", dir, strerror(errno));
+  /* The archive is made beside DIR, so its parent folder must be there. */
+  char *parent = sp_replay_dir_of(dir);
+  if (!parent) return sp_fail(err, SP_ENOMEM, "out of memory");
+  int ok = !parent[0] || stat(parent, &st) == 0;
+  if (ok && parent[0]) ok = S_ISDIR(st.st_mode);
+  sp_status s = SP_OK;
+  if (!ok) {
+    s = sp_fail(err, SP_EIO, "%s: cannot make the archive folder: %s is not a folder", dir, parent);
+    sp_error_hint(err, "make the parent folder first, or choose another --archive");
+  }
+  free(parent);
   return s;
 }
 

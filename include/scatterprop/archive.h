@@ -63,6 +63,13 @@ sp_status sp_archive_run(const char *dir, const char *record_text,
                          const sp_archive_extra *extra, size_t nextra, int overwrite,
                          sp_error *err);
 
+/* Checks, without writing anything, that DIR can take an archive: it does
+ * not exist (and its parent folder does), or is an empty folder, or
+ * overwrite is given and it is a folder.  The same refusals as
+ * sp_archive_fit and sp_archive_run make (SP_EIO, with a hint), so that a
+ * caller can make them before a long run instead of after it. */
+sp_status sp_archive_check(const char *dir, int overwrite, sp_error *err);
+
 #ifdef __cplusplus
 }
 #endif
