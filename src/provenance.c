@@ -49,11 +49,13 @@ static void code_flags(char *buf)
 #else
   add_flag(buf, "not optimised");
 #endif
+  /* Never fast-math (docs/reproducibility.md): a build that turns it on,
+   * whatever CMakeLists.txt says, fails here instead of writing records
+   * that claim bit-for-bit replays. */
 #if defined(__FAST_MATH__)
-  add_flag(buf, "fast-math");
-#else
-  add_flag(buf, "no fast-math");
+#error "scatterprop must not be compiled with -ffast-math (docs/reproducibility.md)"
 #endif
+  add_flag(buf, "no fast-math");
 #if defined(__FINITE_MATH_ONLY__) && __FINITE_MATH_ONLY__
   add_flag(buf, "finite-math-only");
 #endif
@@ -107,7 +109,12 @@ void sp_provenance_get(sp_provenance *p)
   put(p->jansson_build, JANSSON_VERSION);
   put(p->jansson_runtime, jansson_version_str());
   put(p->libcsv, STR(CSV_MAJOR) "." STR(CSV_MINOR) "." STR(CSV_RELEASE));
-  put(p->udunits2, "2 (udunits2.h has no version macro; see the system's package list)");
+  /* udunits2.h has no version macro and the library no version call: the
+   * version its pkg-config file stated when this was built. */
+  if (SP_BUILD_UDUNITS2_VERSION[0])
+    put(p->udunits2, SP_BUILD_UDUNITS2_VERSION " (built with; from pkg-config)");
+  else
+    put(p->udunits2, "2 (udunits2.h has no version macro and pkg-config did not say)");
 #if defined(__GLIBC__)
   snprintf(p->libc, sizeof p->libc, "glibc %s", gnu_get_libc_version());
 #else
