@@ -35,7 +35,7 @@ void cli_replay_help(FILE *out)
           "\n"
           "Exit codes: 0 identical, 1 results differ, 2 usage, 3 an input file changed or\n"
           "is missing (or the record is malformed), 4 bad model, 5 numerical failure,\n"
-          "6 I/O error.\n"
+          "6 I/O error, 130 interrupted.\n"
           "\n",
           SP_REPLAY_DEFAULT_TOLERANCE, CLI_REPLAY_SHOWN);
   cli_print_caution(out);
@@ -102,6 +102,8 @@ int cli_replay_run(int argc, char **argv)
   sp_error err;
   sp_error_clear(&err);
   sp_replay_report rep;
+  /* A replay writes nothing: Ctrl-C ends it at once (exit 130). */
+  cli_sigint_install();
   sp_status st = sp_replay(record, &o, &rep, &err);
   if (rep.build_differs && (st == SP_OK || st == SP_EDIFFERS))
     fprintf(stderr, "scatterprop: note: %s was made by another build (%s); numbers are "
@@ -129,9 +131,16 @@ int cli_replay_run(int argc, char **argv)
       printf("  ... and %zu more%s\n", rep.ndiffs_total - shown,
              all ? "" : " (--all lists them)");
     rc = CLI_DIFFERS;
+  } else if (rep.nbad > 0) {
+    /* The files first, the hint on what to do after them. */
+    char hint[sizeof err.hint];
+    snprintf(hint, sizeof hint, "%s", err.hint);
+    err.hint[0] = '\0';
+    rc = cli_report(&err);
+    print_inputs(&rep);
+    if (hint[0]) fprintf(stderr, "  hint: %s\n", hint);
   } else {
     rc = cli_report(&err);
-    if (rep.nbad > 0) print_inputs(&rep);
   }
   sp_replay_report_clear(&rep);
   return rc;
