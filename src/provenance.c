@@ -89,6 +89,22 @@ static void code_flags(char *buf)
 #endif
 }
 
+/* The features of the processor running this, as GCC's and clang's
+ * __builtin_cpu_supports reads them (CPUID on x86). */
+static void cpu_features(char *buf)
+{
+  buf[0] = '\0';
+#if (defined(__x86_64__) || defined(__i386__)) && (defined(__GNUC__) || defined(__clang__))
+  __builtin_cpu_init();
+  if (__builtin_cpu_supports("sse2")) add_flag(buf, "sse2");
+  if (__builtin_cpu_supports("avx")) add_flag(buf, "avx");
+  if (__builtin_cpu_supports("avx2")) add_flag(buf, "avx2");
+  if (__builtin_cpu_supports("fma")) add_flag(buf, "fma");
+  if (__builtin_cpu_supports("avx512f")) add_flag(buf, "avx512f");
+#endif
+  if (!buf[0]) snprintf(buf, SP_PROVENANCE_TEXT_MAX, "not detected");
+}
+
 void sp_provenance_get(sp_provenance *p)
 {
   memset(p, 0, sizeof *p);
@@ -137,6 +153,7 @@ void sp_provenance_get(sp_provenance *p)
     put(p->os_version, NULL);
     put(p->machine, NULL);
   }
+  cpu_features(p->cpu_features);
 }
 
 int sp_provenance_threads(int requested)
@@ -216,6 +233,7 @@ json_t *sp_provenance_json_object(wctx *w)
   set(w, os, "release", str(w, p.os_release));
   set(w, os, "version", str(w, p.os_version));
   set(w, os, "machine", str(w, p.machine));
+  set(w, os, "cpu_features", str(w, p.cpu_features));
   set(w, o, "os", os);
   return o;
 }

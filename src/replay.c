@@ -472,6 +472,7 @@ void sp_replay_check_build(const json_t *root, sp_replay_report *rep)
       {"OpenMP", {"provenance", "libraries", "openmp", NULL}, p.openmp},
       {"libc", {"provenance", "libraries", "libc", NULL}, p.libc},
       {"machine", {"provenance", "os", "machine", NULL}, p.machine},
+      {"processor features", {"provenance", "os", "cpu_features", NULL}, p.cpu_features},
   };
   rep->build_differs = 0;
   rep->build_note[0] = '\0';

@@ -412,7 +412,10 @@ START_TEST(test_library_versions)
   edit("fits/dm.json", jl, 4, 0, 0, "2.13");
   const char *csv[] = {"provenance", "libraries", "libcsv"};
   edit("fits/dm.json", csv, 3, 0, 1, NULL);
+  const char *cpu[] = {"provenance", "os", "cpu_features"};
+  edit("fits/dm.json", cpu, 3, 0, 0, "sse2");
   ck_assert_int_eq(sh(SP " replay fits/dm.json"), 0);
+  ASSERT_HAS(err_text, "processor features sse2 -> ");
   ASSERT_HAS(err_text, "jansson loaded 2.13 -> ");
   ASSERT_HAS(err_text, "libcsv not recorded (this build: ");
   ASSERT_HAS(out_text, "within relative 1e-09");
@@ -441,6 +444,18 @@ START_TEST(test_build_facts)
     ck_assert_msg(g && strncmp(g, out_text, 12) == 0, "git '%s', HEAD %s", g ? g : "(none)",
                   out_text);
     ck_assert(g[12] == '\0' || strcmp(g + 12, "-dirty") == 0);
+  }
+  /* The processor's features, against the kernel's list of them. */
+  const char *feat = json_string_value(
+      json_object_get(json_object_get(json_object_get(r, "provenance"), "os"), "cpu_features"));
+  ck_assert_ptr_nonnull(feat);
+  if (sh("uname -m | grep -qx x86_64 && test -r /proc/cpuinfo") == 0) {
+    const char *flags[] = {"sse2", "avx2", "fma"};
+    for (int i = 0; i < 3; i++) {
+      int has = sh("grep -m1 '^flags' /proc/cpuinfo | grep -qw %s", flags[i]) == 0;
+      ck_assert_msg(has == (strstr(feat, flags[i]) != NULL), "cpu_features '%s', %s %s", feat,
+                    flags[i], has ? "present" : "absent");
+    }
   }
   /* The command line, the seed, the generator and the stream rule, the
    * model text and its SHA-256 (by coreutils), time stamps in UTC. */

@@ -15,7 +15,8 @@
  *  - strings, booleans, nulls and integers must be equal;
  *  - a number pair a, b is equal when |a - b| <= tol * max(|a|, |b|), and
  *    tol is 0 (bit for bit) when the record's build facts (tool version,
- *    git revision, compiler, GSL, libc, machine) match this build, and
+ *    git revision, compiler, flags, GSL, jansson, libcsv, udunits2,
+ *    OpenMP, libc, machine, processor features) match this build, and
  *    SP_REPLAY_DEFAULT_TOLERANCE when they differ or the record does not
  *    say; sp_replay_options.tolerance overrides both;
  *  - an object key or array element present on one side only differs. */
