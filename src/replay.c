@@ -249,17 +249,24 @@ static int file_exists(const char *p) { return access(p, F_OK) == 0; }
 
 /* The places a relative path recorded in a non-archived record may be, in
  * the order they are tried: the record's working folder, the current
- * folder, the record's own folder.  Fills up to 3 owned paths. */
+ * folder, the record's own folder.  Fills up to 3 owned paths, and what
+ * each place is into why when why is not NULL. */
 static size_t candidates(const char *record_path, const json_t *root, const char *recorded,
-                         char *out[3])
+                         char *out[3], const char *why[3])
 {
   size_t n = 0;
   json_t *wd = json_object_get(json_object_get(root, "provenance"), "working_directory");
-  if (json_is_string(wd) && json_string_length(wd) > 0)
+  if (json_is_string(wd) && json_string_length(wd) > 0) {
+    if (why) why[n] = "the folder it was made in";
     out[n++] = sp_replay_join(json_string_value(wd), recorded);
+  }
+  if (why) why[n] = "the current folder";
   out[n++] = dup_n(recorded, strlen(recorded));
   char *dir = sp_replay_dir_of(record_path);
-  if (dir && dir[0]) out[n++] = sp_replay_join(dir, recorded);
+  if (dir && dir[0]) {
+    if (why) why[n] = "the record's folder";
+    out[n++] = sp_replay_join(dir, recorded);
+  }
   free(dir);
   return n;
 }
@@ -278,7 +285,7 @@ char *sp_replay_locate(const char *record_path, const json_t *root, const char *
     free(dir);
   } else {
     char *c[3] = {NULL, NULL, NULL};
-    size_t n = candidates(record_path, root, recorded, c);
+    size_t n = candidates(record_path, root, recorded, c, NULL);
     /* The first that is there; none: the current folder's, as recorded. */
     size_t pick = n;
     for (size_t i = 0; i < n && pick == n; i++)
@@ -313,13 +320,8 @@ char *sp_replay_locate_tried(const char *record_path, const json_t *root, const 
     return dup_n(buf, strlen(buf));
   }
   char *c[3] = {NULL, NULL, NULL};
-  size_t n = candidates(record_path, root, recorded, c);
-  json_t *wd = json_object_get(json_object_get(root, "provenance"), "working_directory");
-  const char *why[3];
-  size_t k = 0;
-  if (json_is_string(wd) && json_string_length(wd) > 0) why[k++] = "the folder it was made in";
-  why[k++] = "the current folder";
-  why[k++] = "the record's folder";
+  const char *why[3] = {"", "", ""};
+  size_t n = candidates(record_path, root, recorded, c, why);
   size_t len = (size_t)snprintf(buf, sizeof buf, "looked for %s at", recorded);
   for (size_t i = 0; i < n && len < sizeof buf; i++)
     len += (size_t)snprintf(buf + len, sizeof buf - len, "%s %s (%s)", i ? "," : "",
