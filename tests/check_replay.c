@@ -436,14 +436,17 @@ START_TEST(test_build_facts)
     ck_assert_msg(u && strncmp(u, out_text, strlen(out_text)) == 0, "udunits2 '%s', want %s",
                   u ? u : "(none)", out_text);
   }
-  /* The revision this program was built from: the checkout's HEAD (the
-   * test runs right after the build), "-dirty" with uncommitted changes. */
+  /* The revision this program was built from: a commit of this checkout's
+   * history (HEAD, or an earlier one when a commit came after the build),
+   * "-dirty" when tracked files had changes at the build. */
   if (sh("git -C '%s' rev-parse --short=12 HEAD", SP_SOURCE_DIR) == 0) {
-    out_text[strcspn(out_text, "\n")] = '\0';
     const char *g = json_string_value(json_object_get(json_object_get(r, "tool"), "git"));
-    ck_assert_msg(g && strncmp(g, out_text, 12) == 0, "git '%s', HEAD %s", g ? g : "(none)",
-                  out_text);
-    ck_assert(g[12] == '\0' || strcmp(g + 12, "-dirty") == 0);
+    ck_assert_ptr_nonnull(g);
+    ck_assert_msg(strlen(g) >= 12 && strspn(g, "0123456789abcdef") == 12 &&
+                      (g[12] == '\0' || strcmp(g + 12, "-dirty") == 0),
+                  "git '%s'", g);
+    ck_assert_msg(sh("git -C '%s' merge-base --is-ancestor %.12s HEAD", SP_SOURCE_DIR, g) == 0,
+                  "git '%s' is not HEAD or an ancestor of it", g);
   }
   /* The processor's features, against the kernel's list of them. */
   const char *feat = json_string_value(
@@ -477,6 +480,53 @@ START_TEST(test_build_facts)
   ck_assert_msg(t && strlen(t) == 20 && t[4] == '-' && t[10] == 'T' && t[19] == 'Z',
                 "created_utc '%s' is not ISO 8601 UTC", t ? t : "(none)");
   json_decref(r);
+}
+END_TEST
+
+START_TEST(test_git_revision_script)
+{
+  /* cmake/git_revision.cmake on a repository of its own: the commit, then
+   * "-dirty" with a tracked file changed, then the next commit; the header
+   * is left alone (same time stamp) when the revision is unchanged, so an
+   * unchanged revision rebuilds nothing.  Skipped without git or cmake. */
+  if (sh("command -v git && command -v cmake") != 0) return;
+  const char *g = "git -c user.name=t -c user.email=t@t";
+  ck_assert_int_eq(sh("mkdir repo && cd repo && git init -q && echo a > f && git add f && "
+                      "%s commit -q -m one",
+                      g),
+                   0);
+  char run[1024];
+  snprintf(run, sizeof run,
+           "cmake -DSRC=repo -DOUT=rev.h -P '%s/cmake/git_revision.cmake' && "
+           "cat rev.h",
+           SP_SOURCE_DIR);
+  ck_assert_int_eq(sh("%s", run), 0);
+  char *h1 = strdup(out_text);
+  ck_assert_int_eq(sh("git -C repo rev-parse --short=12 HEAD"), 0);
+  out_text[12] = '\0';
+  char want[64];
+  snprintf(want, sizeof want, "#define SP_BUILD_GIT_REVISION \"%s\"\n", out_text);
+  ASSERT_HAS(h1, want);
+  /* Unchanged: the file is not rewritten. */
+  ck_assert_int_eq(sh("touch -d '2000-01-01' rev.h && %s >/dev/null && "
+                      "test \"$(date -r rev.h +%%Y)\" = 2000",
+                      run),
+                   0);
+  /* A tracked file changed: -dirty; an untracked file alone does not count. */
+  ck_assert_int_eq(sh("echo b >> repo/f && %s", run), 0);
+  snprintf(want + strlen(want) - 2, sizeof want - strlen(want) + 2, "-dirty\"\n");
+  ASSERT_HAS(out_text, want);
+  ck_assert_int_eq(sh("cd repo && %s commit -q -am two && echo u > untracked", g), 0);
+  ck_assert_int_eq(sh("%s", run), 0);
+  ASSERT_LACKS(out_text, "-dirty");
+  ck_assert_str_ne(out_text, h1);
+  free(h1);
+  /* Not a git checkout: "unknown". */
+  ck_assert_int_eq(sh("mkdir plain && cmake -DSRC=plain -DOUT=p.h -P "
+                      "'%s/cmake/git_revision.cmake' && cat p.h",
+                      SP_SOURCE_DIR),
+                   0);
+  ASSERT_HAS(out_text, "\"unknown\"");
 }
 END_TEST
 
@@ -592,6 +642,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_moved_without_its_folder);
   tcase_add_test(t, test_library_versions);
   tcase_add_test(t, test_build_facts);
+  tcase_add_test(t, test_git_revision_script);
   suite_add_tcase(s, t);
   TCase *c = tcase_create("compare");
   tcase_add_test(c, test_compare_rules);
