@@ -5,6 +5,7 @@
  * renamed into place. */
 #include "scatterprop/archive.h"
 
+#include <dirent.h>
 #include <errno.h>
 #include <stdlib.h>
 #include <string.h>
@@ -327,6 +328,131 @@ static void remove_files(const plan *p, const char *root)
   rmdir(root);
 }
 
+/* ---- replacing an archive ------------------------------------------------------ */
+
+/* The relative paths the manifest of the archive at dir lists (returns
+ * owned, one NUL-terminated path after another in *buf, *n of them), or
+ * NULL when it has none that can be read. */
+static char *manifest_paths(const char *dir, size_t *n)
+{
+  char *mp = sp_replay_join(dir, "MANIFEST.sha256");
+  if (!mp) return NULL;
+  sp_error e;
+  sp_error_clear(&e);
+  size_t len = 0;
+  char *m = sp_replay_read_file(mp, &len, &e);
+  free(mp);
+  if (!m) return NULL;
+  /* "<64 hex>  <path>\n" lines: keep the paths, in place. */
+  size_t k = 0, out = 0;
+  *n = 0;
+  while (k < len) {
+    char *eol = memchr(m + k, '\n', len - k);
+    size_t end = eol ? (size_t)(eol - m) : len;
+    if (end - k > 66 && m[k + 64] == ' ' && m[k + 65] == ' ') {
+      size_t plen = end - k - 66;
+      memmove(m + out, m + k + 66, plen);
+      m[out + plen] = '\0';
+      out += plen + 1;
+      (*n)++;
+    }
+    k = end + 1;
+  }
+  return m;
+}
+
+static int listed_in(const char *paths, size_t n, const char *rel)
+{
+  for (size_t i = 0; i < n; i++, paths += strlen(paths) + 1)
+    if (strcmp(paths, rel) == 0) return 1;
+  return 0;
+}
+
+/* Whether dir holds an archive and nothing else: MANIFEST.sha256, the
+ * files it lists, and the folders fits/, data/ and charts/ for them.  On
+ * failure err names the first file that does not belong (SP_EIO). */
+static sp_status only_an_archive(const char *dir, sp_error *err)
+{
+  size_t n = 0;
+  char *paths = manifest_paths(dir, &n);
+  if (!paths) {
+    sp_fail(err, SP_EIO,
+            "%s: the folder holds files and no archive manifest "
+            "(MANIFEST.sha256); refusing to replace it even with --force",
+            dir);
+    return sp_error_hint(err, "an archive replaces only an earlier archive: empty the "
+                              "folder, or choose another one");
+  }
+  static const char *const sub[] = {"", "fits", "data", "charts"};
+  sp_status s = SP_OK;
+  for (size_t f = 0; f < sizeof sub / sizeof sub[0] && s == SP_OK; f++) {
+    char *d = sub[f][0] ? sp_replay_join(dir, sub[f]) : strdup(dir);
+    DIR *h = d ? opendir(d) : NULL;
+    if (!h) {
+      free(d);
+      continue; /* a sub-folder this archive did not need */
+    }
+    for (struct dirent *e; s == SP_OK && (e = readdir(h)) != NULL;) {
+      if (!strcmp(e->d_name, ".") || !strcmp(e->d_name, "..")) continue;
+      char rel[600];
+      snprintf(rel, sizeof rel, "%s%s%s", sub[f], sub[f][0] ? "/" : "", e->d_name);
+      char *full = sp_replay_join(dir, rel);
+      struct stat st;
+      int ok = full && lstat(full, &st) == 0;
+      int is_sub = 0;
+      for (size_t g = 1; !sub[f][0] && g < sizeof sub / sizeof sub[0]; g++)
+        is_sub |= strcmp(e->d_name, sub[g]) == 0;
+      if (ok && S_ISDIR(st.st_mode))
+        ok = is_sub;
+      else if (ok)
+        ok = S_ISREG(st.st_mode) &&
+             (listed_in(paths, n, rel) || strcmp(rel, "MANIFEST.sha256") == 0);
+      free(full);
+      if (!ok) {
+        s = sp_fail(err, SP_EIO,
+                    "%s: holds %s, which is not part of the archive there "
+                    "(its MANIFEST.sha256 does not list it); refusing to replace the folder "
+                    "even with --force",
+                    dir, rel);
+        sp_error_hint(err, "move that file out of the folder, or choose another one");
+      }
+    }
+    closedir(h);
+    free(d);
+  }
+  free(paths);
+  return s;
+}
+
+/* Removes an archive that only_an_archive accepted: its listed files, the
+ * manifest, the sub-folders and the folder itself. */
+static void remove_archive(const char *dir)
+{
+  size_t n = 0;
+  char *paths = manifest_paths(dir, &n);
+  const char *q = paths;
+  for (size_t i = 0; paths && i < n; i++, q += strlen(q) + 1) {
+    if (strstr(q, "..")) continue; /* never outside the folder */
+    char *full = sp_replay_join(dir, q);
+    if (full) unlink(full);
+    free(full);
+  }
+  free(paths);
+  static const char *const rest[] = {"MANIFEST.sha256", "fits", "data", "charts"};
+  for (size_t i = 0; i < sizeof rest / sizeof rest[0]; i++) {
+    char *full = sp_replay_join(dir, rest[i]);
+    /* A folder that is not empty (it never is here) would be kept. */
+    if (full && unlink(full) != 0) rmdir(full);
+    free(full);
+  }
+  rmdir(dir);
+}
+
+/* Replaces the archive at dir by the plan: written whole beside it first,
+ * then the old one moved aside, the new one moved in, the old one removed.
+ * A failure before the swap leaves the old archive as it was. */
+static sp_status replace_archive(const plan *p, const char *dir, sp_error *err);
+
 static sp_status write_plan(const plan *p, const char *dir_in, int overwrite, sp_error *err)
 {
   char dir[4096];
@@ -347,7 +473,7 @@ static sp_status write_plan(const plan *p, const char *dir_in, int overwrite, sp
               "overwrite it", dir);
       return sp_error_hint(err, "give --force to replace its files, or choose another folder");
     }
-    return write_files(p, dir, 1, err);
+    return replace_archive(p, dir, err);
   }
   char tmp[4096 + 16];
   snprintf(tmp, sizeof tmp, "%s.tmp-%s", dir, "XX" "XX" "XX");
@@ -363,6 +489,87 @@ static sp_status write_plan(const plan *p, const char *dir_in, int overwrite, sp
     if (exists) make_dir(dir); /* put back the empty folder that was there */
   }
   return s;
+}
+
+sp_status sp_archive_check(const char *dir_in, int overwrite, sp_error *err)
+{
+  char dir[4096];
+  size_t n = dir_in ? strlen(dir_in) : 0;
+  while (n > 1 && dir_in[n - 1] == '/')
+    n--;
+  if (n == 0 || n >= sizeof dir - 16) return sp_fail(err, SP_EUSAGE, "archive: bad folder name");
+  memcpy(dir, dir_in, n);
+  dir[n] = '\0';
+  struct stat st;
+  if (stat(dir, &st) == 0) {
+    if (!S_ISDIR(st.st_mode)) return sp_fail(err, SP_EIO, "%s: exists and is not a folder", dir);
+    DIR *d = opendir(dir);
+    if (!d) return sp_fail(err, SP_EIO, "%s: cannot read the folder: %s", dir, strerror(errno));
+    int empty = 1;
+    for (struct dirent *e; empty && (e = readdir(d)) != NULL;)
+      if (strcmp(e->d_name, ".") != 0 && strcmp(e->d_name, "..") != 0) empty = 0;
+    closedir(d);
+    if (empty) return SP_OK;
+    if (overwrite) return only_an_archive(dir, err);
+    sp_fail(err, SP_EIO,
+            "%s: the archive folder exists and is not empty; refusing to "
+            "overwrite it",
+            dir);
+    return sp_error_hint(err, "give --force to replace its files, or choose another folder");
+  }
+  if (errno != ENOENT) return sp_fail(err, SP_EIO, "%s: %s", dir, strerror(errno));
+  /* The archive is made beside DIR, so its parent folder must be there. */
+  char *parent = sp_replay_dir_of(dir);
+  if (!parent) return sp_fail(err, SP_ENOMEM, "out of memory");
+  int ok = !parent[0] || stat(parent, &st) == 0;
+  if (ok && parent[0]) ok = S_ISDIR(st.st_mode);
+  sp_status s = SP_OK;
+  if (!ok) {
+    s = sp_fail(err, SP_EIO, "%s: cannot make the archive folder: %s is not a folder", dir, parent);
+    sp_error_hint(err, "make the parent folder first, or choose another --archive");
+  }
+  free(parent);
+  return s;
+}
+
+static sp_status replace_archive(const plan *p, const char *dir, sp_error *err)
+{
+  TRY(only_an_archive(dir, err));
+  char tmp[4096 + 16], old[4096 + 16];
+  snprintf(tmp, sizeof tmp, "%s.tmp-%s", dir,
+           "XX"
+           "XX"
+           "XX");
+  snprintf(old, sizeof old, "%s.old-%s", dir,
+           "XX"
+           "XX"
+           "XX");
+  if (!mkdtemp(tmp))
+    return sp_fail(err, SP_EIO, "%s: cannot create a temporary folder beside it: %s", dir,
+                   strerror(errno));
+  sp_status s = write_files(p, tmp, 0, err);
+  if (s != SP_OK) {
+    remove_files(p, tmp);
+    return s;
+  }
+  /* mkdtemp makes an empty folder, which rename(2) may replace. */
+  if (!mkdtemp(old) || rename(dir, old) != 0) {
+    s = sp_fail(err, SP_EIO, "%s: cannot move the old archive aside: %s", dir, strerror(errno));
+    rmdir(old);
+    remove_files(p, tmp);
+    return s;
+  }
+  if (rename(tmp, dir) != 0) {
+    s = sp_fail(err, SP_EIO, "%s: cannot move the new archive into place: %s", dir,
+                strerror(errno));
+    if (rename(old, dir) != 0)
+      sp_error_hint(err, "the old archive is in %s, the new one in %s", old, tmp);
+    else
+      remove_files(p, tmp);
+    return s;
+  }
+  remove_archive(old);
+  return SP_OK;
 }
 
 /* ---- fit archives -------------------------------------------------------------- */

@@ -205,6 +205,7 @@ struct sp_outfile {
   FILE *fp;
   char *path;
   char *tmp;
+  int overwrite;
 };
 
 sp_outfile *sp_outfile_open(const char *path, int overwrite, sp_error *err)
@@ -226,6 +227,7 @@ sp_outfile *sp_outfile_open(const char *path, int overwrite, sp_error *err)
     return NULL;
   }
   memcpy(f->path, path, n + 1);
+  f->overwrite = overwrite;
   /* mkstemp template: six X characters, spelled out to keep markers greppable. */
   snprintf(f->tmp, n + 16, "%s.tmp-%s", path, "XX" "XX" "XX");
   int fd = mkstemp(f->tmp);
@@ -254,6 +256,45 @@ static void outfile_release(sp_outfile *f)
   free(f);
 }
 
+/* Syncs the folder that holds path, so that a rename into it is on disk.
+ * Best effort: some file systems refuse fsync on a folder (EINVAL), and
+ * the file itself was synced already. */
+static void sync_parent(const char *path)
+{
+  const char *slash = strrchr(path, '/');
+  char dir[4096];
+  if (!slash)
+    snprintf(dir, sizeof dir, ".");
+  else if (slash == path)
+    snprintf(dir, sizeof dir, "/");
+  else if ((size_t)(slash - path) < sizeof dir)
+    snprintf(dir, sizeof dir, "%.*s", (int)(slash - path), path);
+  else
+    return;
+  int fd = open(dir, O_RDONLY);
+  if (fd < 0) return;
+  (void)fsync(fd);
+  close(fd);
+}
+
+/* Puts tmp in place at path without ever replacing a file there: link(2)
+ * fails with EEXIST when one appeared since sp_outfile_open looked.  A file
+ * system without hard links falls back to a last look and rename(2).
+ * Returns 0 or an errno value (EEXIST: refused). */
+static int place_new(const char *tmp, const char *path)
+{
+  if (link(tmp, path) == 0) {
+    unlink(tmp);
+    return 0;
+  }
+  int e = errno;
+  if (e == EEXIST) return EEXIST;
+  if (e != EPERM && e != ENOTSUP && e != EOPNOTSUPP && e != EMLINK && e != EXDEV) return e;
+  struct stat st;
+  if (lstat(path, &st) == 0) return EEXIST;
+  return rename(tmp, path) == 0 ? 0 : errno;
+}
+
 sp_status sp_outfile_commit(sp_outfile *f, sp_error *err)
 {
   if (!f) return sp_fail(err, SP_EUSAGE, "sp_outfile_commit: no file");
@@ -262,13 +303,30 @@ sp_status sp_outfile_commit(sp_outfile *f, sp_error *err)
   if (!bad && fsync(fileno(f->fp)) != 0) bad = 1;
   int saved = errno;
   if (fclose(f->fp) != 0) { bad = 1; saved = errno; }
-  if (!bad && rename(f->tmp, f->path) != 0) { bad = 1; saved = errno; }
+  if (!bad) {
+    int e = f->overwrite ? (rename(f->tmp, f->path) == 0 ? 0 : errno) : place_new(f->tmp, f->path);
+    if (e == EEXIST && !f->overwrite) {
+      unlink(f->tmp);
+      sp_fail(err, SP_EIO,
+              "%s: file exists (made while this one was written); refusing to "
+              "overwrite it",
+              f->path);
+      sp_error_hint(err, "give --force to replace it, or choose another name");
+      outfile_release(f);
+      return SP_EIO;
+    }
+    if (e != 0) {
+      bad = 1;
+      saved = e;
+    }
+  }
   if (bad) {
     unlink(f->tmp);
     sp_fail(err, SP_EIO, "%s: write failed: %s", f->path, strerror(saved));
     outfile_release(f);
     return SP_EIO;
   }
+  sync_parent(f->path);
   outfile_release(f);
   return SP_OK;
 }

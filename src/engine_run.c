@@ -366,6 +366,9 @@ sp_status sp_engine_run(const sp_engine_input *inputs, size_t ninputs,
   res->requested = planned;
   res->samples = samples;
   res->threads = (uint64_t)T;
+  /* The caller keeps nothing of a cancelled run: skip the summaries (on
+   * 10^7 samples they take seconds, which Ctrl-C should not wait for). */
+  if (cancelled && opt->discard_cancelled) goto done;
   res->coverage = opt->coverage;
   res->ninputs = k;
   res->noutputs = nout;

@@ -248,6 +248,14 @@ sp_status sp_engine_sobol_indices(const sp_engine_input *inputs, size_t ninputs,
   st = engine_par_run(&par, &merged, &cancelled, err);
   if (st != SP_OK) goto done;
   const size_t done_n = (size_t)(merged * B < N ? merged * B : N);
+  if (cancelled && opt->discard_cancelled) {
+    /* Nothing of it is kept (sp_engine_options.discard_cancelled). */
+    res->status = SP_ENGINE_CANCELLED;
+    res->method = opt->method;
+    res->seed = opt->seed;
+    res->base_samples = done_n;
+    goto done;
+  }
 
   /* keep the base samples that are finite everywhere, in order */
   size_t n = 0;

@@ -887,6 +887,11 @@ sp_status sp_fitplot_redraw(const char *record_path, const char *data_path,
     sp_ingest_options_init(&io);
     io.columns = cols;
     io.ncolumns = plan.group_column ? 2 : 1;
+    /* The lot column is read as text when it has no unit, as fit read it. */
+    if (plan.group_column) {
+      io.text_columns = &cols[1];
+      io.ntext_columns = 1;
+    }
     st = sp_table_read(path, &io, &t, err);
   }
   /* The table's own hash covers the bytes it parsed (the file could have

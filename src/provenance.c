@@ -49,11 +49,13 @@ static void code_flags(char *buf)
 #else
   add_flag(buf, "not optimised");
 #endif
+  /* Never fast-math (docs/reproducibility.md): a build that turns it on,
+   * whatever CMakeLists.txt says, fails here instead of writing records
+   * that claim bit-for-bit replays. */
 #if defined(__FAST_MATH__)
-  add_flag(buf, "fast-math");
-#else
-  add_flag(buf, "no fast-math");
+#error "scatterprop must not be compiled with -ffast-math (docs/reproducibility.md)"
 #endif
+  add_flag(buf, "no fast-math");
 #if defined(__FINITE_MATH_ONLY__) && __FINITE_MATH_ONLY__
   add_flag(buf, "finite-math-only");
 #endif
@@ -87,6 +89,22 @@ static void code_flags(char *buf)
 #endif
 }
 
+/* The features of the processor running this, as GCC's and clang's
+ * __builtin_cpu_supports reads them (CPUID on x86). */
+static void cpu_features(char *buf)
+{
+  buf[0] = '\0';
+#if (defined(__x86_64__) || defined(__i386__)) && (defined(__GNUC__) || defined(__clang__))
+  __builtin_cpu_init();
+  if (__builtin_cpu_supports("sse2")) add_flag(buf, "sse2");
+  if (__builtin_cpu_supports("avx")) add_flag(buf, "avx");
+  if (__builtin_cpu_supports("avx2")) add_flag(buf, "avx2");
+  if (__builtin_cpu_supports("fma")) add_flag(buf, "fma");
+  if (__builtin_cpu_supports("avx512f")) add_flag(buf, "avx512f");
+#endif
+  if (!buf[0]) snprintf(buf, SP_PROVENANCE_TEXT_MAX, "not detected");
+}
+
 void sp_provenance_get(sp_provenance *p)
 {
   memset(p, 0, sizeof *p);
@@ -107,7 +125,12 @@ void sp_provenance_get(sp_provenance *p)
   put(p->jansson_build, JANSSON_VERSION);
   put(p->jansson_runtime, jansson_version_str());
   put(p->libcsv, STR(CSV_MAJOR) "." STR(CSV_MINOR) "." STR(CSV_RELEASE));
-  put(p->udunits2, "2 (udunits2.h has no version macro; see the system's package list)");
+  /* udunits2.h has no version macro and the library no version call: the
+   * version its pkg-config file stated when this was built. */
+  if (SP_BUILD_UDUNITS2_VERSION[0])
+    put(p->udunits2, SP_BUILD_UDUNITS2_VERSION " (built with; from pkg-config)");
+  else
+    put(p->udunits2, "2 (udunits2.h has no version macro and pkg-config did not say)");
 #if defined(__GLIBC__)
   snprintf(p->libc, sizeof p->libc, "glibc %s", gnu_get_libc_version());
 #else
@@ -130,6 +153,7 @@ void sp_provenance_get(sp_provenance *p)
     put(p->os_version, NULL);
     put(p->machine, NULL);
   }
+  cpu_features(p->cpu_features);
 }
 
 int sp_provenance_threads(int requested)
@@ -209,6 +233,7 @@ json_t *sp_provenance_json_object(wctx *w)
   set(w, os, "release", str(w, p.os_release));
   set(w, os, "version", str(w, p.os_version));
   set(w, os, "machine", str(w, p.machine));
+  set(w, os, "cpu_features", str(w, p.cpu_features));
   set(w, o, "os", os);
   return o;
 }

@@ -116,8 +116,11 @@ sp_status sp_replay_bad(const sp_replay_ctx *c, const char *path, const char *fm
   va_start(ap, fmt);
   vsnprintf(what, sizeof what, fmt, ap);
   va_end(ap);
-  return sp_fail(c->err, SP_EDATA, "%s%srecord %s: field '%s' %s", c->kind ? c->kind : "",
-                 c->kind ? " " : "", c->name, path, what);
+  sp_fail(c->err, SP_EDATA, "%s%srecord %s: field '%s' %s", c->kind ? c->kind : "",
+          c->kind ? " " : "", c->name, path, what);
+  return sp_error_hint(c->err, "the record was edited or damaged after it was made, or is not "
+                               "a scatterprop record: take the original (an archive's "
+                               "MANIFEST.sha256 gives its hash)");
 }
 
 sp_status sp_replay_need_obj(const sp_replay_ctx *c, const json_t *o, const char *key,
@@ -183,10 +186,17 @@ sp_status sp_replay_need_u64(const sp_replay_ctx *c, const json_t *o, const char
     sp_error e;
     sp_error_clear(&e);
     uint64_t x;
-    if (sp_parse_u64(json_string_value(v), &x, &e) == SP_OK) {
+    /* Only what the writers put there: the digits of a value that a JSON
+     * integer cannot hold.  "7" for 7 is a mistyped field, not a seed. */
+    if (sp_parse_u64(json_string_value(v), &x, &e) == SP_OK && x > (uint64_t)INT64_MAX) {
       *out = x;
       return SP_OK;
     }
+    return sp_replay_bad(c, path,
+                         "must be a non-negative integer (a string only for values "
+                         "of 2^63 and more, as the record's writer makes them), got "
+                         "\"%.40s\"",
+                         json_string_value(v));
   }
   return sp_replay_bad(c, path, "must be a non-negative integer");
 }
@@ -237,6 +247,30 @@ char *sp_replay_join(const char *dir, const char *rel)
 
 static int file_exists(const char *p) { return access(p, F_OK) == 0; }
 
+/* The places a relative path recorded in a non-archived record may be, in
+ * the order they are tried: the record's working folder, the current
+ * folder, the record's own folder.  Fills up to 3 owned paths, and what
+ * each place is into why when why is not NULL. */
+static size_t candidates(const char *record_path, const json_t *root, const char *recorded,
+                         char *out[3], const char *why[3])
+{
+  size_t n = 0;
+  json_t *wd = json_object_get(json_object_get(root, "provenance"), "working_directory");
+  if (json_is_string(wd) && json_string_length(wd) > 0) {
+    if (why) why[n] = "the folder it was made in";
+    out[n++] = sp_replay_join(json_string_value(wd), recorded);
+  }
+  if (why) why[n] = "the current folder";
+  out[n++] = dup_n(recorded, strlen(recorded));
+  char *dir = sp_replay_dir_of(record_path);
+  if (dir && dir[0]) {
+    if (why) why[n] = "the record's folder";
+    out[n++] = sp_replay_join(dir, recorded);
+  }
+  free(dir);
+  return n;
+}
+
 char *sp_replay_locate(const char *record_path, const json_t *root, const char *recorded,
                        int *exists)
 {
@@ -250,18 +284,51 @@ char *sp_replay_locate(const char *record_path, const json_t *root, const char *
     out = dir ? sp_replay_join(dir, recorded) : NULL;
     free(dir);
   } else {
-    json_t *wd = json_object_get(json_object_get(root, "provenance"), "working_directory");
-    if (json_is_string(wd) && json_string_length(wd) > 0) {
-      out = sp_replay_join(json_string_value(wd), recorded);
-      if (out && !file_exists(out)) {
-        free(out);
-        out = NULL;
-      }
+    char *c[3] = {NULL, NULL, NULL};
+    size_t n = candidates(record_path, root, recorded, c, NULL);
+    /* The first that is there; none: the current folder's, as recorded. */
+    size_t pick = n;
+    for (size_t i = 0; i < n && pick == n; i++)
+      if (c[i] && file_exists(c[i])) pick = i;
+    if (pick == n) {
+      for (size_t i = 0; i < n; i++)
+        if (c[i] && strcmp(c[i], recorded) == 0) pick = i;
     }
-    if (!out) out = dup_n(recorded, strlen(recorded));
+    if (pick < n) {
+      out = c[pick];
+      c[pick] = NULL;
+    }
+    for (size_t i = 0; i < n; i++)
+      free(c[i]);
   }
   if (out) *exists = file_exists(out);
   return out;
+}
+
+char *sp_replay_locate_tried(const char *record_path, const json_t *root, const char *recorded)
+{
+  char buf[3 * 4096 + 256];
+  buf[0] = '\0';
+  if (recorded[0] == '/' || json_is_object(json_object_get(root, "archive"))) {
+    int ex = 0;
+    char *p = sp_replay_locate(record_path, root, recorded, &ex);
+    snprintf(buf, sizeof buf, "looked for it at %s%s", p ? p : recorded,
+             recorded[0] == '/' ? ""
+                                : " (the record is archived: its paths are relative to "
+                                  "its own folder)");
+    free(p);
+    return dup_n(buf, strlen(buf));
+  }
+  char *c[3] = {NULL, NULL, NULL};
+  const char *why[3] = {"", "", ""};
+  size_t n = candidates(record_path, root, recorded, c, why);
+  size_t len = (size_t)snprintf(buf, sizeof buf, "looked for %s at", recorded);
+  for (size_t i = 0; i < n && len < sizeof buf; i++)
+    len += (size_t)snprintf(buf + len, sizeof buf - len, "%s %s (%s)", i ? "," : "",
+                            c[i] ? c[i] : "?", why[i]);
+  for (size_t i = 0; i < n; i++)
+    free(c[i]);
+  return dup_n(buf, strlen(buf));
 }
 
 /* ---- inputs -------------------------------------------------------------- */
@@ -318,7 +385,56 @@ sp_status sp_replay_check_fit_data(const char *fit_path, const json_t *root, con
   if (!where) return sp_fail(err, SP_ENOMEM, "out of memory");
   s = sp_replay_add_input(rep, role, where, sha, size, err);
   free(where);
+  if (s == SP_OK) sp_replay_note_tried(rep, fit_path, root, path);
   return s;
+}
+
+void sp_replay_note_tried(sp_replay_report *rep, const char *record_path, const json_t *root,
+                          const char *recorded)
+{
+  sp_replay_input *in = &rep->inputs[rep->ninputs - 1];
+  if (in->status != SP_REPLAY_INPUT_MISSING) return;
+  char *tried = sp_replay_locate_tried(record_path, root, recorded);
+  if (!tried) return;
+  free(in->note);
+  in->note = tried;
+}
+
+sp_status sp_replay_inputs_failed(const char *path, const sp_replay_report *rep, sp_error *err)
+{
+  const sp_replay_input *first = NULL;
+  size_t changed = 0, missing = 0;
+  for (size_t i = 0; i < rep->ninputs; i++) {
+    const sp_replay_input *in = &rep->inputs[i];
+    if (in->status == SP_REPLAY_INPUT_OK) continue;
+    if (!first) first = in;
+    if (in->status == SP_REPLAY_INPUT_MISSING)
+      missing++;
+    else
+      changed++;
+  }
+  if (!first) return sp_fail(err, SP_EDATA, "replay of %s: inputs changed or missing", path);
+  const char *what = first->status == SP_REPLAY_INPUT_MISSING ? "missing" : "changed";
+  if (rep->nbad == 1)
+    sp_fail(err, SP_EDATA, "replay of %s: an input file is %s, so nothing was rerun: %s: %s", path,
+            what, first->role, first->path);
+  else
+    sp_fail(err, SP_EDATA,
+            "replay of %s: %zu of its %zu input files are %s, so nothing was "
+            "rerun; the first: %s: %s (%s)",
+            path, rep->nbad, rep->ninputs, missing && changed ? "missing or changed" : what,
+            first->role, first->path, what);
+  if (changed && !missing)
+    return sp_error_hint(err, "a changed file gives other results; restore the bytes the "
+                              "record names (its archive or backup; the SHA-256 above "
+                              "identifies them), or make a new record from the file as it "
+                              "is now");
+  if (missing && !changed)
+    return sp_error_hint(err, "copy the file to one of the places above, or replay from "
+                              "the folder the record was made in (a record's relative paths "
+                              "are relative to it; an archive's to the archive)");
+  return sp_error_hint(err, "restore each file listed above, with the bytes the recorded "
+                            "SHA-256 identifies");
 }
 
 /* ---- the build ----------------------------------------------------------- */
@@ -342,30 +458,47 @@ void sp_replay_check_build(const json_t *root, sp_replay_report *rep)
     const char *k[4];
     const char *now;
   } facts[] = {
-    {"tool version", {"tool", "version", NULL, NULL}, p.version},
-    {"git revision", {"tool", "git", NULL, NULL}, p.git},
-    {"compiler", {"tool", "compiler", NULL, NULL}, p.compiler},
-    {"GSL", {"tool", "gsl", NULL, NULL}, p.gsl_build},
-    {"compiler version", {"provenance", "build", "compiler_version", NULL}, p.compiler_version},
-    {"build type", {"provenance", "build", "build_type", NULL}, p.build_type},
-    {"code generation", {"provenance", "build", "flags", NULL}, p.flags},
-    {"compile flags", {"provenance", "build", "cflags", NULL}, p.cflags},
-    {"GSL loaded", {"provenance", "libraries", "gsl", "loaded"}, p.gsl_runtime},
-    {"libc", {"provenance", "libraries", "libc", NULL}, p.libc},
-    {"machine", {"provenance", "os", "machine", NULL}, p.machine},
+      {"tool version", {"tool", "version", NULL, NULL}, p.version},
+      {"git revision", {"tool", "git", NULL, NULL}, p.git},
+      {"compiler", {"tool", "compiler", NULL, NULL}, p.compiler},
+      {"GSL", {"tool", "gsl", NULL, NULL}, p.gsl_build},
+      {"compiler version", {"provenance", "build", "compiler_version", NULL}, p.compiler_version},
+      {"build type", {"provenance", "build", "build_type", NULL}, p.build_type},
+      {"code generation", {"provenance", "build", "flags", NULL}, p.flags},
+      {"compile flags", {"provenance", "build", "cflags", NULL}, p.cflags},
+      {"GSL loaded", {"provenance", "libraries", "gsl", "loaded"}, p.gsl_runtime},
+      {"jansson", {"provenance", "libraries", "jansson", "built_with"}, p.jansson_build},
+      {"jansson loaded", {"provenance", "libraries", "jansson", "loaded"}, p.jansson_runtime},
+      {"libcsv", {"provenance", "libraries", "libcsv", NULL}, p.libcsv},
+      {"udunits2", {"provenance", "libraries", "udunits2", NULL}, p.udunits2},
+      {"OpenMP", {"provenance", "libraries", "openmp", NULL}, p.openmp},
+      {"libc", {"provenance", "libraries", "libc", NULL}, p.libc},
+      {"machine", {"provenance", "os", "machine", NULL}, p.machine},
+      {"processor features", {"provenance", "os", "cpu_features", NULL}, p.cpu_features},
   };
   rep->build_differs = 0;
   rep->build_note[0] = '\0';
   size_t n = 0;
+  const int has_prov = json_is_object(json_object_get(root, "provenance"));
   for (size_t i = 0; i < sizeof facts / sizeof facts[0]; i++) {
     const char *was = tree_str(root, facts[i].k[0], facts[i].k[1], facts[i].k[2], facts[i].k[3]);
-    if (!was || strcmp(was, facts[i].now) == 0) continue;
+    if (was && strcmp(was, facts[i].now) == 0) continue;
+    /* A record without provenance at all is described once, below; one
+     * that lacks a single fact (edited, or older than the fact) cannot show
+     * it is this build's. */
+    if (!was && (!has_prov || strcmp(facts[i].k[0], "tool") == 0)) continue;
     rep->build_differs = 1;
     n = strlen(rep->build_note);
-    snprintf(rep->build_note + n, sizeof rep->build_note - n, "%s%s %s -> %s", n ? "; " : "",
-             facts[i].label, was, facts[i].now);
+    if (was)
+      snprintf(rep->build_note + n, sizeof rep->build_note - n, "%s%s %s -> %s", n ? "; " : "",
+               facts[i].label, was, facts[i].now);
+    else
+      snprintf(rep->build_note + n, sizeof rep->build_note - n,
+               "%s%s not recorded (this "
+               "build: %s)",
+               n ? "; " : "", facts[i].label, facts[i].now);
   }
-  if (!json_is_object(json_object_get(root, "provenance"))) {
+  if (!has_prov) {
     rep->build_differs = 1;
     n = strlen(rep->build_note);
     snprintf(rep->build_note + n, sizeof rep->build_note - n,

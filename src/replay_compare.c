@@ -80,6 +80,10 @@ static char *value_text(const json_t *v)
 
 static void add_diff(walker *w, const json_t *a, const json_t *b, double rel)
 {
+  sp_replay_diff_kind kind = !a                                 ? SP_REPLAY_DIFF_NOT_RECORDED
+                             : !b                               ? SP_REPLAY_DIFF_NOT_REPLAYED
+                             : json_typeof(a) != json_typeof(b) ? SP_REPLAY_DIFF_TYPE
+                                                                : SP_REPLAY_DIFF_VALUE;
   sp_replay_report *rep = w->rep;
   rep->ndiffs_total++;
   if (rep->ndiffs >= SP_REPLAY_MAX_DIFFS) return;
@@ -96,6 +100,7 @@ static void add_diff(walker *w, const json_t *a, const json_t *b, double rel)
   d->recorded = value_text(a);
   d->replayed = value_text(b);
   d->rel = rel;
+  d->kind = kind;
   if (!d->path || !d->recorded || !d->replayed) {
     free(d->path);
     free(d->recorded);
@@ -108,6 +113,13 @@ static void add_diff(walker *w, const json_t *a, const json_t *b, double rel)
 
 static int numbers_equal(const json_t *a, const json_t *b, double tol, double *rel)
 {
+  /* An integer where the writer puts a real (or the reverse) is another
+   * type, even when the values agree: 1000000.0 for a count. */
+  if (json_typeof(a) != json_typeof(b)) {
+    double x = json_number_value(a), y = json_number_value(b), m = fmax(fabs(x), fabs(y));
+    *rel = m > 0 ? fabs(x - y) / m : 0.0;
+    return 0;
+  }
   if (json_is_integer(a) && json_is_integer(b)) {
     json_int_t x = json_integer_value(a), y = json_integer_value(b);
     double dx = (double)x, dy = (double)y;
@@ -225,5 +237,54 @@ sp_status sp_replay_compare_trees(const json_t *recorded, const json_t *replayed
   w.err = err;
   visit(&w, recorded, replayed);
   if (w.oom) return sp_fail(err, SP_ENOMEM, "replay: out of memory comparing the records");
+  return SP_OK;
+}
+
+static const char *type_name(const char *json_text)
+{
+  switch (json_text[0]) {
+  case '"':
+    return "a string";
+  case '{':
+    return "an object";
+  case '[':
+    return "an array";
+  case 't':
+  case 'f':
+    return "a boolean";
+  case 'n':
+    return "null";
+  default:
+    return strpbrk(json_text, ".eE") ? "a real number" : "an integer";
+  }
+}
+
+sp_status sp_replay_refuse_malformed(const char *kind, const char *record,
+                                     const sp_replay_report *rep, sp_error *err)
+{
+  if (rep->build_differs) return SP_OK;
+  for (size_t i = 0; i < rep->ndiffs; i++) {
+    const sp_replay_diff *d = &rep->diffs[i];
+    if (d->kind == SP_REPLAY_DIFF_NOT_RECORDED) {
+      sp_fail(err, SP_EDATA,
+              "%s record %s: field '%s' is missing (this build writes it: "
+              "%s)",
+              kind, record, d->path, d->replayed);
+    } else if (d->kind == SP_REPLAY_DIFF_NOT_REPLAYED) {
+      sp_fail(err, SP_EDATA,
+              "%s record %s: field '%s' is not one this build writes (it "
+              "holds %s)",
+              kind, record, d->path, d->recorded);
+    } else if (d->kind == SP_REPLAY_DIFF_TYPE) {
+      sp_fail(err, SP_EDATA,
+              "%s record %s: field '%s' must be %s, as this build writes it "
+              "(%s), got %s",
+              kind, record, d->path, type_name(d->replayed), d->replayed, d->recorded);
+    } else {
+      continue;
+    }
+    return sp_error_hint(err, "the record was edited or damaged after it was made: take "
+                              "the original (an archive's MANIFEST.sha256 gives its hash)");
+  }
   return SP_OK;
 }

@@ -77,19 +77,6 @@ static sp_status fit_options(const sp_replay_ctx *c, const json_t *root, sp_fit_
   return SP_OK;
 }
 
-/* Summarises the changed or missing inputs in err (SP_EDATA). */
-static sp_status inputs_failed(const char *path, const sp_replay_report *rep, sp_error *err)
-{
-  for (size_t i = 0; i < rep->ninputs; i++) {
-    const sp_replay_input *in = &rep->inputs[i];
-    if (in->status == SP_REPLAY_INPUT_OK) continue;
-    return sp_fail(err, SP_EDATA, "replay of %s: %zu input file%s changed or missing, the "
-                   "first: %s %s (%s)", path, rep->nbad, rep->nbad == 1 ? "" : "s", in->role,
-                   in->path, in->status == SP_REPLAY_INPUT_MISSING ? "missing" : "changed");
-  }
-  return sp_fail(err, SP_EDATA, "replay of %s: inputs changed or missing", path);
-}
-
 sp_status sp_replay_fit_record(const char *path, json_t *root, const sp_replay_options *opt,
                                sp_replay_report *rep, sp_error *err)
 {
@@ -102,6 +89,9 @@ sp_status sp_replay_fit_record(const char *path, json_t *root, const sp_replay_o
     sp_record_fit rf;
     sp_status s = sp_record_fit_read(path, &rf, err);
     sp_record_fit_clear(&rf);
+    if (s == SP_EDATA && err && !err->hint[0])
+      sp_error_hint(err, "the record was edited or damaged after it was made: take the "
+                         "original (an archive's MANIFEST.sha256 gives its hash)");
     if (s != SP_OK) return s;
   }
   json_t *data = NULL;
@@ -117,10 +107,15 @@ sp_status sp_replay_fit_record(const char *path, json_t *root, const sp_replay_o
   o.threads = opt->threads;
 
   TRY(sp_replay_check_fit_data(path, root, "data", rep, err));
-  if (rep->nbad > 0) return inputs_failed(path, rep, err);
+  if (rep->nbad > 0) return sp_replay_inputs_failed(path, rep, err);
 
   sp_ingest_options io;
   sp_ingest_options_init(&io);
+  /* The lot column is read as text when it has no unit, as fit read it. */
+  if (by) {
+    io.text_columns = &by;
+    io.ntext_columns = 1;
+  }
   sp_table *t = NULL;
   sp_fit_grouped g;
   memset(&g, 0, sizeof g);
@@ -149,6 +144,7 @@ sp_status sp_replay_fit_record(const char *path, json_t *root, const sp_replay_o
     if (!fresh) s = sp_fail(err, SP_ENOMEM, "replay: cannot read back the new fit record");
   }
   if (s == SP_OK) s = sp_replay_compare_trees(root, fresh, SP_REPLAY_FIT, rep->tolerance, rep, err);
+  if (s == SP_OK) s = sp_replay_refuse_malformed("fit", path, rep, err);
   if (s == SP_OK && rep->ndiffs_total > 0) s = SP_EDIFFERS;
   json_decref(fresh);
   free(text);

@@ -62,10 +62,26 @@ char *sp_replay_join(const char *dir, const char *rel);
  * record (one with an "archive" object) relative to the record's folder;
  * otherwise relative to the working directory the record was made in
  * (provenance.working_directory) when a file is there, else relative to
- * the current directory.  Returns owned; *exists says whether the file is
- * there.  NULL only when out of memory. */
+ * the current directory when one is there, else relative to the record's
+ * own folder when one is there; with none there, the path as recorded
+ * (relative to the current directory).  Returns owned; *exists says
+ * whether the file is there.  NULL only when out of memory. */
 char *sp_replay_locate(const char *record_path, const json_t *root, const char *recorded,
                        int *exists);
+
+/* Where sp_replay_locate looked for recorded: "looked for data/x.csv at
+ * /wd/data/x.csv (the folder it was made in), data/x.csv (the current
+ * folder), ..." (returns owned; NULL when out of memory). */
+char *sp_replay_locate_tried(const char *record_path, const json_t *root, const char *recorded);
+
+/* The input added last, when missing: its note becomes the places that
+ * were tried (sp_replay_locate_tried). */
+void sp_replay_note_tried(sp_replay_report *rep, const char *record_path, const json_t *root,
+                          const char *recorded);
+
+/* SP_EDATA for a report with changed or missing inputs: the count, the
+ * first, and a hint on what to do. */
+sp_status sp_replay_inputs_failed(const char *path, const sp_replay_report *rep, sp_error *err);
 
 /* Appends an input to the report (copies the strings); SP_ENOMEM only. */
 sp_status sp_replay_add_input(sp_replay_report *rep, const char *role, const char *path,
@@ -81,6 +97,14 @@ void sp_replay_check_build(const json_t *root, sp_replay_report *rep);
 sp_status sp_replay_compare_trees(const json_t *recorded, const json_t *replayed,
                                   sp_replay_kind kind, double tolerance,
                                   sp_replay_report *rep, sp_error *err);
+
+/* After a comparison of a record with its rerun by this very build (not
+ * rep->build_differs): SP_EDATA naming the first field of another JSON type
+ * than the rerun's, one the record lacks or one the rerun does not make,
+ * as a malformed record (kind
+ * "fit" or "run", record its path); SP_OK when there is none. */
+sp_status sp_replay_refuse_malformed(const char *kind, const char *record,
+                                     const sp_replay_report *rep, sp_error *err);
 
 /* The two reruns (replay_fit.c, replay_run.c): each checks the record's
  * inputs into rep and, when they are all intact, reruns and compares. */

@@ -125,6 +125,7 @@ static sp_status check_inputs(const sp_replay_ctx *c, const char *path, const js
   *model_path = sp_replay_locate(path, root, mpath, &exists);
   if (!*model_path) return sp_fail(c->err, SP_ENOMEM, "out of memory");
   TRY(sp_replay_add_input(rep, "model", *model_path, msha, tlen, c->err));
+  sp_replay_note_tried(rep, path, root, mpath);
   char *mdir = sp_replay_dir_of(*model_path);
   if (!mdir) return sp_fail(c->err, SP_ENOMEM, "out of memory");
   sp_status s = SP_OK;
@@ -196,16 +197,7 @@ sp_status sp_replay_run_record(const char *path, json_t *root, const sp_replay_o
   sp_status s = run_options(&c, root, &ro, &ar);
   ro.engine.threads = opt->threads;
   if (s == SP_OK) s = check_inputs(&c, path, root, rep, &model_path);
-  if (s == SP_OK && rep->nbad > 0) {
-    for (size_t i = 0; i < rep->ninputs; i++) {
-      const sp_replay_input *in = &rep->inputs[i];
-      if (in->status == SP_REPLAY_INPUT_OK) continue;
-      s = sp_fail(err, SP_EDATA, "replay of %s: %zu input file%s changed or missing, the "
-                  "first: %s %s (%s)", path, rep->nbad, rep->nbad == 1 ? "" : "s", in->role,
-                  in->path, in->status == SP_REPLAY_INPUT_MISSING ? "missing" : "changed");
-      break;
-    }
-  }
+  if (s == SP_OK && rep->nbad > 0) s = sp_replay_inputs_failed(path, rep, err);
   if (s == SP_OK) {
     sp_model_diags d;
     sp_model_diags_init(&d);
@@ -237,6 +229,7 @@ sp_status sp_replay_run_record(const char *path, json_t *root, const sp_replay_o
     if (!fresh) s = sp_fail(err, SP_ENOMEM, "replay: cannot read back the new run record");
   }
   if (s == SP_OK) s = sp_replay_compare_trees(root, fresh, SP_REPLAY_RUN, rep->tolerance, rep, err);
+  if (s == SP_OK) s = sp_replay_refuse_malformed("run", path, rep, err);
   if (s == SP_OK && rep->ndiffs_total > 0) s = SP_EDIFFERS;
   json_decref(fresh);
   free(text);

@@ -817,8 +817,16 @@ static sp_status open_fit(fitsrc *f, const json_t *fr, const char *resolved,
   }
   f->data_path = strdup(dp);
   if (!f->data_path) return sp_fail(err, SP_ENOMEM, "out of memory");
+  /* The lot column is read as text when it has no unit (lots numbered
+   * 117, 131 group as they did in the fit). */
+  json_t *by = json_object_get(f->root, "by");
+  f->by = json_is_object(by) ? gstr(by, "column") : NULL;
   sp_ingest_options io;
   sp_ingest_options_init(&io);
+  if (f->by) {
+    io.text_columns = &f->by;
+    io.ntext_columns = 1;
+  }
   st = sp_table_read(dp, &io, &f->table, err);
   if (st != SP_OK) return st;
   memcpy(f->data_sha, f->table->sha256, sizeof f->data_sha);
@@ -842,8 +850,6 @@ static sp_status open_fit(fitsrc *f, const json_t *fr, const char *resolved,
     return sp_fail(err, SP_EDATA, "data file %s gives %zu values of '%s', fit record %s says "
                                   "%llu",
                    dp, f->n, colname, resolved, (unsigned long long)guint(data, "n"));
-  json_t *by = json_object_get(f->root, "by");
-  f->by = json_is_object(by) ? gstr(by, "column") : NULL;
   const char *cols[1] = {colname};
   return sp_summary_build(f->table, cols, 1, f->by, &f->summary, err);
 }

@@ -411,6 +411,12 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
     sp_fail(err, SP_EUSAGE, "sp_run_record_json: the run has not been executed");
     return NULL;
   }
+  if (r->result.status == SP_ENGINE_CANCELLED && r->result.noutputs == 0) {
+    sp_fail(err, SP_EUSAGE,
+            "sp_run_record_json: the run was cancelled and its samples "
+            "discarded (discard_cancelled)");
+    return NULL;
+  }
   const sp_engine_result *res = &r->result;
   wctx w = {0};
   json_t *root = obj(&w);
@@ -529,12 +535,26 @@ char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
 
 /* ---- tables --------------------------------------------------------------- */
 
+sp_status sp_run_table_path(const sp_run *r, const char *dir, size_t j, const char *kind, char *buf,
+                            size_t n, sp_error *err)
+{
+  if (j >= sp_model_output_count(r->model))
+    return sp_fail(err, SP_EUSAGE, "sp_run_table_path: no output %zu", j);
+  if (strcmp(kind, "percentiles") != 0 && strcmp(kind, "histogram") != 0 &&
+      strcmp(kind, "samples") != 0)
+    return sp_fail(err, SP_EUSAGE, "sp_run_table_path: no table kind '%s'", kind);
+  const char *name = sp_model_output_at(r->model, j)->name;
+  int w = snprintf(buf, n, "%s/%s.%s.csv", dir, name, kind);
+  if (w < 0 || (size_t)w >= n) return sp_fail(err, SP_ELIMIT, "%s: path too long", dir);
+  return SP_OK;
+}
+
 static sp_status write_table(const char *dir, const char *name, const char *kind,
                              int overwrite, const sp_run *r, size_t j, sp_error *err)
 {
   char path[4096];
-  int w = snprintf(path, sizeof path, "%s/%s.%s.csv", dir, name, kind);
-  if (w < 0 || (size_t)w >= sizeof path) return sp_fail(err, SP_ELIMIT, "%s: path too long", dir);
+  sp_status ps = sp_run_table_path(r, dir, j, kind, path, sizeof path, err);
+  if (ps != SP_OK) return ps;
   sp_outfile *f = sp_outfile_open(path, overwrite, err);
   if (!f) return err ? err->code : SP_EIO;
   FILE *fp = sp_outfile_stream(f);
@@ -568,6 +588,10 @@ sp_status sp_run_write_tables(const sp_run *r, const char *dir, int with_samples
                               sp_error *err)
 {
   if (!r->executed) return sp_fail(err, SP_EUSAGE, "sp_run_write_tables: no results yet");
+  if (r->result.status == SP_ENGINE_CANCELLED && r->result.noutputs == 0)
+    return sp_fail(err, SP_EUSAGE,
+                   "sp_run_write_tables: the run was cancelled and its "
+                   "samples discarded (discard_cancelled)");
   for (size_t j = 0; j < r->result.noutputs; j++) {
     const char *name = sp_model_output_at(r->model, j)->name;
     sp_status s = write_table(dir, name, "percentiles", overwrite, r, j, err);

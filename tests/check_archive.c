@@ -204,6 +204,44 @@ START_TEST(test_never_overwritten)
 }
 END_TEST
 
+START_TEST(test_force_replaces_whole)
+{
+  /* --force replaces an earlier archive as a whole: the second run uses one
+   * fit record only, and the first one's other record, data and charts are
+   * gone (the manifest lists every file there is). */
+  ck_assert_int_eq(sh("cd src && " SP " propagate model/m.spm --samples 5000 --plots P "
+                      "--archive ../A"),
+                   0);
+  ck_assert(exists("A/fits/g.json") && exists("A/charts/run_q_hist.dat"));
+  write_file(path_in("src/model/one.spm"), "input Dm [mm] ~ fit(\"../fits/dm.json\")\n"
+                                           "output d2 [mm] = 2 * Dm\n");
+  ck_assert_int_eq(sh("cd src && " SP " propagate model/one.spm --samples 5000 --archive ../A "
+                      "--force"),
+                   0);
+  ck_assert(!exists("A/fits/g.json") && !exists("A/data/shear_modulus.csv") && !exists("A/charts"));
+  ck_assert_int_eq(sh("cd A && find . -type f | sort"), 0);
+  ck_assert_str_eq(out_text, "./MANIFEST.sha256\n./data/coil_dm.csv\n./fits/dm.json\n"
+                             "./model.spm\n./run.json\n");
+  ck_assert_int_eq(sh("cd A && sha256sum -c --quiet MANIFEST.sha256"), 0);
+  ck_assert_int_eq(sh(SP " replay A/run.json"), 0);
+  ck_assert_int_eq(sh("ls | grep -c -e tmp- -e old-"), 1); /* nothing left beside it */
+  /* A file of the user's in it: refused even with --force, before the run,
+   * and the folder is kept as it was. */
+  ck_assert_int_eq(sh("echo mine > A/notes.txt && cd src && " SP " propagate model/m.spm "
+                      "--samples 5000 --archive ../A --force"),
+                   6);
+  ASSERT_HAS(err_text, "holds notes.txt, which is not part of the archive");
+  ck_assert(exists("A/notes.txt") && exists("A/fits/dm.json"));
+  /* A folder that is not an archive at all, likewise. */
+  ck_assert_int_eq(sh("mkdir H && echo mine > H/x && cd src && " SP " fit in/coil_dm.csv "
+                      "--column Dm --bootstrap 40 --archive ../H --force"),
+                   6);
+  ASSERT_HAS(err_text, "no archive manifest");
+  ck_assert_int_eq(sh("ls H"), 0);
+  ck_assert_str_eq(out_text, "x\n");
+}
+END_TEST
+
 START_TEST(test_changed_input_refused)
 {
   /* The CSV changes after its fit: the archive would not replay. */
@@ -276,6 +314,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_fit_archive_charts);
   tcase_add_test(t, test_run_archive_moves);
   tcase_add_test(t, test_never_overwritten);
+  tcase_add_test(t, test_force_replaces_whole);
   tcase_add_test(t, test_changed_input_refused);
   tcase_add_test(t, test_shared_names);
   tcase_add_test(t, test_library_refusals);

@@ -154,6 +154,33 @@ START_TEST(test_summary_options)
 }
 END_TEST
 
+START_TEST(test_fit_numbered_lots)
+{
+  /* Lots numbered 117 and 131 (no unit) group in fit as in summary, and the
+   * record's readers (replay, plot, a model's fit(), report) read the lot
+   * column the same way. */
+  write_file(path_in("lots.csv"),
+             "lot,d [mm]\n117,2.001\n117,2.004\n117,1.998\n117,2.000\n117,2.003\n"
+             "117,1.999\n131,2.006\n131,2.008\n131,2.003\n131,2.007\n131,2.004\n"
+             "131,2.009\n");
+  ck_assert_int_eq(cli("fit lots.csv --column d --by lot --families normal --pvalues none "
+                       "--out f.json"),
+                   0);
+  ASSERT_HAS(out_text, "lot = 117: n = 6");
+  ASSERT_HAS(out_text, "lot = 131: n = 6");
+  ck_assert_int_eq(cli("replay f.json"), 0);
+  ASSERT_HAS(out_text, "identical");
+  ck_assert_int_eq(cli("plot f.json --out P"), 0);
+  write_file(path_in("m.spm"), "input d [mm] ~ fit(\"f.json\")\noutput y [mm] = 2 * d\n");
+  ck_assert_int_eq(cli("propagate m.spm --samples 2000 --out run"), 0);
+  ck_assert_int_eq(cli("report run/run.json --out r.html"), 0);
+  char *html = slurp(path_in("r.html"));
+  ck_assert_ptr_nonnull(html);
+  ASSERT_HAS(html, "131");
+  free(html);
+}
+END_TEST
+
 static Suite *cli_suite(void)
 {
   Suite *s = suite_create("cli");
@@ -167,6 +194,7 @@ static Suite *cli_suite(void)
   tcase_add_test(tc, test_missing_values_counted);
   tcase_add_test(tc, test_summary_of_text_column_refused);
   tcase_add_test(tc, test_summary_options);
+  tcase_add_test(tc, test_fit_numbered_lots);
   suite_add_tcase(s, tc);
   return s;
 }

@@ -288,6 +288,248 @@ START_TEST(test_threads_identical)
 }
 END_TEST
 
+/* The record text with the fields that say how and when it was made, not
+ * what, taken out: the time stamp, the command line and the thread count
+ * asked for.  Everything else, build facts included, must be the same. */
+static json_t *what_was_made(const char *text)
+{
+  json_error_t je;
+  json_t *r = json_loads(text, 0, &je);
+  ck_assert_msg(r != NULL, "not JSON: %s", je.text);
+  json_object_del(r, "created_utc");
+  json_object_del(r, "command");
+  json_object_del(json_object_get(r, "options"), "threads");
+  return r;
+}
+
+START_TEST(test_threads_identical_records)
+{
+  /* Records of 1 and 4 threads, as whole JSON trees: identical apart from
+   * the time stamp, the command line and options.threads. */
+  ck_assert_int_eq(sh(SP " propagate model/m.spm --samples 30000 --threads 1 --out r1"), 0);
+  ck_assert_int_eq(sh(SP " propagate model/m.spm --samples 30000 --threads 4 --out r4"), 0);
+  char *a = slurp(path_in("r1/run.json")), *b = slurp(path_in("r4/run.json"));
+  ASSERT_HAS(b, "\"threads\": 4");
+  json_t *ta = what_was_made(a), *tb = what_was_made(b);
+  ck_assert_msg(json_equal(ta, tb), "run records of 1 and 4 threads differ");
+  json_decref(ta);
+  json_decref(tb);
+  free(a);
+  free(b);
+  /* The tables too, byte for byte. */
+  ck_assert_int_eq(sh("cmp r1/q.percentiles.csv r4/q.percentiles.csv && "
+                      "cmp r1/q.histogram.csv r4/q.histogram.csv"), 0);
+  ck_assert_int_eq(sh(SP " fit in/shear_modulus.csv --column G --by lot --pvalues bootstrap "
+                      "--bootstrap 60 --threads 1 --out f1.json"), 0);
+  ck_assert_int_eq(sh(SP " fit in/shear_modulus.csv --column G --by lot --pvalues bootstrap "
+                      "--bootstrap 60 --threads 4 --out f4.json"), 0);
+  a = slurp(path_in("f1.json"));
+  b = slurp(path_in("f4.json"));
+  ta = what_was_made(a);
+  tb = what_was_made(b);
+  ck_assert_msg(json_equal(ta, tb), "fit records of 1 and 4 threads differ");
+  json_decref(ta);
+  json_decref(tb);
+  free(a);
+  free(b);
+  /* Each replays on the other thread count. */
+  ck_assert_int_eq(sh(SP " replay r1/run.json --threads 4"), 0);
+  ck_assert_int_eq(sh(SP " replay f4.json --threads 1"), 0);
+  ASSERT_HAS(out_text, "bit for bit");
+}
+END_TEST
+
+START_TEST(test_mistyped_fields)
+{
+  /* A seed as the string "7": only seeds of 2^63 and more are strings. */
+  ck_assert_int_eq(sh("cp run/run.json run/s.json"), 0);
+  const char *seed[] = {"options", "seed"};
+  edit("run/s.json", seed, 2, 0, 0, "1");
+  ck_assert_int_eq(sh(SP " replay run/s.json"), 3);
+  ASSERT_HAS(err_text, "field 'options.seed' must be a non-negative integer");
+  ASSERT_HAS(err_text, "got \"1\"");
+  ASSERT_HAS(err_text, "hint: the record was edited or damaged");
+  /* A result of another type, a result missing, a field added, a count
+   * written as a real: this build writes none of them, so the record is
+   * refused (exit 3) naming the field, not compared. */
+  const char *mean[] = {"results", "outputs", "0", "mean"};
+  ck_assert_int_eq(sh("cp run/run.json run/t.json && cp run/run.json run/m.json && "
+                      "cp run/run.json run/x.json && cp run/run.json run/n.json"), 0);
+  edit("run/t.json", mean, 4, 0, 0, "4.85");
+  ck_assert_int_eq(sh(SP " replay run/t.json"), 3);
+  ASSERT_HAS(err_text, "field 'results.outputs[0].mean' must be a real number");
+  ASSERT_HAS(err_text, "got \"4.85\"");
+  edit("run/m.json", mean, 4, 0, 1, NULL);
+  ck_assert_int_eq(sh(SP " replay run/m.json"), 3);
+  ASSERT_HAS(err_text, "field 'results.outputs[0].mean' is missing");
+  const char *extra[] = {"results", "bogus"};
+  edit("run/x.json", extra, 2, 1.5, 0, NULL);
+  ck_assert_int_eq(sh(SP " replay run/x.json"), 3);
+  ASSERT_HAS(err_text, "field 'results.bogus' is not one this build writes");
+  const char *n[] = {"results", "outputs", "0", "n"};
+  edit("run/n.json", n, 4, 20000, 0, NULL); /* json_real: 20000.0 */
+  ck_assert_int_eq(sh(SP " replay run/n.json"), 3);
+  ASSERT_HAS(err_text, "field 'results.outputs[0].n' must be an integer");
+  /* In a fit record too. */
+  const char *ll[] = {"candidates", "0", "loglik"};
+  edit("fits/dm.json", ll, 3, 0, 0, "high");
+  ck_assert_int_eq(sh(SP " replay fits/dm.json"), 3);
+  ASSERT_HAS(err_text, "field 'candidates[0].loglik' must be a number");
+  /* A result the fit record reader does not check: the choice's reason. */
+  const char *why[] = {"choice_reason"};
+  ck_assert_int_eq(sh("cp fits/g.json fits/w.json"), 0);
+  edit("fits/w.json", why, 1, 3, 0, NULL);
+  ck_assert_int_eq(sh(SP " replay fits/w.json"), 3);
+  ASSERT_HAS(err_text, "field 'choice_reason' must be a string");
+}
+END_TEST
+
+START_TEST(test_moved_without_its_folder)
+{
+  /* A record and its CSV moved together, away from the folder the record
+   * was made in: found beside the record. */
+  ck_assert_int_eq(sh("mkdir a && cp in/coil_dm.csv a/ && cd a && " SP " fit coil_dm.csv "
+                      "--column Dm --bootstrap 20 --out r.json"), 0);
+  ck_assert_int_eq(sh("mv a b && " SP " replay b/r.json"), 0);
+  ASSERT_HAS(out_text, "identical");
+  /* Gone: the message says where it was looked for, with a hint. */
+  ck_assert_int_eq(sh("rm b/coil_dm.csv && " SP " replay b/r.json"), 3);
+  char want[1200];
+  snprintf(want, sizeof want, "looked for coil_dm.csv at %s/a/coil_dm.csv (the folder it was "
+           "made in), coil_dm.csv (the current folder), b/coil_dm.csv (the record's folder)",
+           dir);
+  ASSERT_HAS(err_text, want);
+  ASSERT_HAS(err_text, "an input file is missing, so nothing was rerun");
+  ASSERT_HAS(err_text, "hint: copy the file");
+}
+END_TEST
+
+START_TEST(test_library_versions)
+{
+  /* Another jansson at run time, and a record without libcsv's version:
+   * both are said, and numbers are compared within the tolerance. */
+  const char *jl[] = {"provenance", "libraries", "jansson", "loaded"};
+  edit("fits/dm.json", jl, 4, 0, 0, "2.13");
+  const char *csv[] = {"provenance", "libraries", "libcsv"};
+  edit("fits/dm.json", csv, 3, 0, 1, NULL);
+  const char *cpu[] = {"provenance", "os", "cpu_features"};
+  edit("fits/dm.json", cpu, 3, 0, 0, "sse2");
+  ck_assert_int_eq(sh(SP " replay fits/dm.json"), 0);
+  ASSERT_HAS(err_text, "processor features sse2 -> ");
+  ASSERT_HAS(err_text, "jansson loaded 2.13 -> ");
+  ASSERT_HAS(err_text, "libcsv not recorded (this build: ");
+  ASSERT_HAS(out_text, "within relative 1e-09");
+}
+END_TEST
+
+START_TEST(test_build_facts)
+{
+  json_error_t je;
+  json_t *r = json_load_file(path_in("run/run.json"), 0, &je);
+  ck_assert_ptr_nonnull(r);
+  json_t *lib = json_object_get(json_object_get(r, "provenance"), "libraries");
+  /* udunits2's version as its pkg-config file states it (the same source
+   * the build uses; skipped where pkg-config does not know udunits). */
+  if (sh("pkg-config --modversion udunits") == 0) {
+    out_text[strcspn(out_text, "\n")] = '\0';
+    const char *u = json_string_value(json_object_get(lib, "udunits2"));
+    ck_assert_msg(u && strncmp(u, out_text, strlen(out_text)) == 0, "udunits2 '%s', want %s",
+                  u ? u : "(none)", out_text);
+  }
+  /* The revision this program was built from: a commit of this checkout's
+   * history (HEAD, or an earlier one when a commit came after the build),
+   * "-dirty" when tracked files had changes at the build. */
+  if (sh("git -C '%s' rev-parse --short=12 HEAD", SP_SOURCE_DIR) == 0) {
+    const char *g = json_string_value(json_object_get(json_object_get(r, "tool"), "git"));
+    ck_assert_ptr_nonnull(g);
+    ck_assert_msg(strlen(g) >= 12 && strspn(g, "0123456789abcdef") == 12 &&
+                      (g[12] == '\0' || strcmp(g + 12, "-dirty") == 0),
+                  "git '%s'", g);
+    ck_assert_msg(sh("git -C '%s' merge-base --is-ancestor %.12s HEAD", SP_SOURCE_DIR, g) == 0,
+                  "git '%s' is not HEAD or an ancestor of it", g);
+  }
+  /* The processor's features, against the kernel's list of them. */
+  const char *feat = json_string_value(
+      json_object_get(json_object_get(json_object_get(r, "provenance"), "os"), "cpu_features"));
+  ck_assert_ptr_nonnull(feat);
+  if (sh("uname -m | grep -qx x86_64 && test -r /proc/cpuinfo") == 0) {
+    const char *flags[] = {"sse2", "avx2", "fma"};
+    for (int i = 0; i < 3; i++) {
+      int has = sh("grep -m1 '^flags' /proc/cpuinfo | grep -qw %s", flags[i]) == 0;
+      ck_assert_msg(has == (strstr(feat, flags[i]) != NULL), "cpu_features '%s', %s %s", feat,
+                    flags[i], has ? "present" : "absent");
+    }
+  }
+  /* The command line, the seed, the generator and the stream rule, the
+   * model text and its SHA-256 (by coreutils), time stamps in UTC. */
+  json_t *cmd = json_object_get(r, "command");
+  ck_assert_str_eq(json_string_value(json_array_get(cmd, 0)), "propagate");
+  ck_assert_str_eq(json_string_value(json_array_get(cmd, 1)), "model/m.spm");
+  json_t *opt = json_object_get(r, "options");
+  ck_assert_int_eq(json_integer_value(json_object_get(opt, "seed")), 1);
+  ASSERT_HAS(json_string_value(json_object_get(opt, "generator")), "pcg64");
+  ASSERT_HAS(json_string_value(json_object_get(opt, "stream_rule")), "splitmix64");
+  char sha[65];
+  sha256sum("model/m.spm", sha);
+  json_t *model = json_object_get(r, "model");
+  ck_assert_str_eq(json_string_value(json_object_get(model, "sha256")), sha);
+  char *text = slurp(path_in("model/m.spm"));
+  ck_assert_str_eq(json_string_value(json_object_get(model, "text")), text);
+  free(text);
+  const char *t = json_string_value(json_object_get(r, "created_utc"));
+  ck_assert_msg(t && strlen(t) == 20 && t[4] == '-' && t[10] == 'T' && t[19] == 'Z',
+                "created_utc '%s' is not ISO 8601 UTC", t ? t : "(none)");
+  json_decref(r);
+}
+END_TEST
+
+START_TEST(test_git_revision_script)
+{
+  /* cmake/git_revision.cmake on a repository of its own: the commit, then
+   * "-dirty" with a tracked file changed, then the next commit; the header
+   * is left alone (same time stamp) when the revision is unchanged, so an
+   * unchanged revision rebuilds nothing.  Skipped without git or cmake. */
+  if (sh("command -v git && command -v cmake") != 0) return;
+  const char *g = "git -c user.name=t -c user.email=t@t";
+  ck_assert_int_eq(sh("mkdir repo && cd repo && git init -q && echo a > f && git add f && "
+                      "%s commit -q -m one",
+                      g),
+                   0);
+  char run[1024];
+  snprintf(run, sizeof run,
+           "cmake -DSRC=repo -DOUT=rev.h -P '%s/cmake/git_revision.cmake' && "
+           "cat rev.h",
+           SP_SOURCE_DIR);
+  ck_assert_int_eq(sh("%s", run), 0);
+  char *h1 = strdup(out_text);
+  ck_assert_int_eq(sh("git -C repo rev-parse --short=12 HEAD"), 0);
+  out_text[12] = '\0';
+  char want[64];
+  snprintf(want, sizeof want, "#define SP_BUILD_GIT_REVISION \"%s\"\n", out_text);
+  ASSERT_HAS(h1, want);
+  /* Unchanged: the file is not rewritten. */
+  ck_assert_int_eq(sh("touch -d '2000-01-01' rev.h && %s >/dev/null && "
+                      "test \"$(date -r rev.h +%%Y)\" = 2000",
+                      run),
+                   0);
+  /* A tracked file changed: -dirty; an untracked file alone does not count. */
+  ck_assert_int_eq(sh("echo b >> repo/f && %s", run), 0);
+  snprintf(want + strlen(want) - 2, sizeof want - strlen(want) + 2, "-dirty\"\n");
+  ASSERT_HAS(out_text, want);
+  ck_assert_int_eq(sh("cd repo && %s commit -q -am two && echo u > untracked", g), 0);
+  ck_assert_int_eq(sh("%s", run), 0);
+  ASSERT_LACKS(out_text, "-dirty");
+  ck_assert_str_ne(out_text, h1);
+  free(h1);
+  /* Not a git checkout: "unknown". */
+  ck_assert_int_eq(sh("mkdir plain && cmake -DSRC=plain -DOUT=p.h -P "
+                      "'%s/cmake/git_revision.cmake' && cat p.h",
+                      SP_SOURCE_DIR),
+                   0);
+  ASSERT_HAS(out_text, "\"unknown\"");
+}
+END_TEST
+
 START_TEST(test_compare_rules)
 {
   /* Closed forms: the relative difference of 1 and 1 + 2^-40 is
@@ -395,6 +637,12 @@ static Suite *suite(void)
   tcase_add_test(t, test_threads_identical);
   tcase_add_test(t, test_other_build);
   tcase_add_test(t, test_old_fit_record);
+  tcase_add_test(t, test_threads_identical_records);
+  tcase_add_test(t, test_mistyped_fields);
+  tcase_add_test(t, test_moved_without_its_folder);
+  tcase_add_test(t, test_library_versions);
+  tcase_add_test(t, test_build_facts);
+  tcase_add_test(t, test_git_revision_script);
   suite_add_tcase(s, t);
   TCase *c = tcase_create("compare");
   tcase_add_test(c, test_compare_rules);

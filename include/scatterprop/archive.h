@@ -20,8 +20,13 @@
  *
  * Nothing is half-written: when DIR does not exist (or is an empty folder)
  * the archive is built in a temporary folder beside it and renamed into
- * place; an existing non-empty DIR is refused unless overwrite is given,
- * and then each file is replaced atomically (sp_outfile). */
+ * place.  An existing non-empty DIR is refused unless overwrite is given;
+ * then it must hold an earlier archive and nothing else (MANIFEST.sha256,
+ * the files it lists, the folders fits/, data/, charts/), else it is
+ * refused all the same, naming the first file that does not belong; the
+ * new archive is built beside it, the old one moved aside, the new one
+ * moved in and the old one removed, so no file of the old archive is left
+ * among the new. */
 #ifndef SP_ARCHIVE_H
 #define SP_ARCHIVE_H
 
@@ -62,6 +67,14 @@ sp_status sp_archive_fit(const char *dir, const char *record_text, const char *r
 sp_status sp_archive_run(const char *dir, const char *record_text,
                          const sp_archive_extra *extra, size_t nextra, int overwrite,
                          sp_error *err);
+
+/* Checks, without writing anything, that DIR can take an archive: it does
+ * not exist (and its parent folder does), or is an empty folder, or
+ * overwrite is given and it holds an earlier archive only.  The same
+ * refusals as
+ * sp_archive_fit and sp_archive_run make (SP_EIO, with a hint), so that a
+ * caller can make them before a long run instead of after it. */
+sp_status sp_archive_check(const char *dir, int overwrite, sp_error *err);
 
 #ifdef __cplusplus
 }

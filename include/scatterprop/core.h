@@ -80,8 +80,11 @@ sp_status sp_parse_double(const char *text, char decimal_sep, double *out,
 sp_status sp_parse_u64(const char *text, uint64_t *out, sp_error *err);
 
 /* Atomic output file: written under a temporary name in the same folder,
- * flushed, fsync'ed and renamed into place on commit; removed on abort.
- * A file that already exists is refused unless overwrite is non-zero. */
+ * flushed, fsync'ed and renamed into place on commit (and the folder
+ * fsync'ed, so that the new name survives a crash too); removed on abort.
+ * A file that already exists is refused unless overwrite is non-zero: at
+ * open, and again at commit, where without overwrite the file is put in
+ * place by link(2), which never replaces a file that appeared meanwhile. */
 typedef struct sp_outfile sp_outfile;
 /* Returns owned: an open output file (free with sp_outfile_commit or
  * sp_outfile_abort), or NULL with err set (SP_EIO). */

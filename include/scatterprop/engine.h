@@ -157,6 +157,12 @@ typedef struct {
 
   uint64_t memory_limit;  /* bytes; 0: 75% of physical memory */
   sp_engine_progress_fn progress; /* may be NULL */
+  /* Non-zero: a cancelled run returns as soon as its blocks stop, without
+   * summarising them (no moments, percentiles, sensitivity; res->status
+   * SP_ENGINE_CANCELLED, res->samples the samples merged, the rest zero),
+   * for callers that keep nothing of a partial run and want Ctrl-C to take
+   * effect at once.  Zero (default): the partial run is summarised. */
+  int discard_cancelled;
   void *progress_user;
   sp_engine_timing *timing;       /* may be NULL; written by the run */
 } sp_engine_options;

@@ -43,6 +43,11 @@ typedef struct {
   char os_release[SP_PROVENANCE_TEXT_MAX];       /* uname: release */
   char os_version[SP_PROVENANCE_TEXT_MAX];       /* uname: version */
   char machine[SP_PROVENANCE_TEXT_MAX];          /* uname: machine */
+  /* The processor's features at run time that change which code libm runs
+   * (glibc picks FMA and AVX2 variants of exp, log, pow, sin, ... when the
+   * processor has them, and they may differ in the last bit):
+   * "sse2 avx avx2 fma avx512f" as present; "not detected" elsewhere. */
+  char cpu_features[SP_PROVENANCE_TEXT_MAX];
 } sp_provenance;
 
 /* Fills p with the facts of this build and of the machine it runs on now.

@@ -15,7 +15,8 @@
  *  - strings, booleans, nulls and integers must be equal;
  *  - a number pair a, b is equal when |a - b| <= tol * max(|a|, |b|), and
  *    tol is 0 (bit for bit) when the record's build facts (tool version,
- *    git revision, compiler, GSL, libc, machine) match this build, and
+ *    git revision, compiler, flags, GSL, jansson, libcsv, udunits2,
+ *    OpenMP, libc, machine, processor features) match this build, and
  *    SP_REPLAY_DEFAULT_TOLERANCE when they differ or the record does not
  *    say; sp_replay_options.tolerance overrides both;
  *  - an object key or array element present on one side only differs. */
@@ -70,12 +71,21 @@ typedef struct {
   char *note;                 /* why it is missing, or NULL */
 } sp_replay_input;
 
+/* What kind of difference a field shows. */
+typedef enum {
+  SP_REPLAY_DIFF_VALUE = 0,    /* same JSON type, other value */
+  SP_REPLAY_DIFF_TYPE,         /* another JSON type (a string for a number, ...) */
+  SP_REPLAY_DIFF_NOT_RECORDED, /* the rerun has the field, the record lacks it */
+  SP_REPLAY_DIFF_NOT_REPLAYED  /* the record has a field the rerun does not make */
+} sp_replay_diff_kind;
+
 /* One differing field. */
 typedef struct {
   char *path;       /* JSON path: "results.outputs[0].mean" */
   char *recorded;   /* the recorded value as JSON text, or "(absent)" */
   char *replayed;   /* the new value as JSON text, or "(absent)" */
   double rel;       /* |a - b| / max(|a|, |b|) for two numbers, else NAN */
+  sp_replay_diff_kind kind;
 } sp_replay_diff;
 
 typedef struct {
@@ -100,7 +110,12 @@ typedef struct {
  *  SP_EDATA     an input file changed or is missing (rep->inputs says
  *               which, with both SHA-256), or the record is malformed
  *               (err names the field: "run record r.json: field
- *               'options.seed' is missing"; rep->nbad is 0 then);
+ *               'options.seed' is missing"; rep->nbad is 0 then).  Made
+ *               by this very build, a record whose result field has
+ *               another JSON type than the rerun's, lacks one the rerun
+ *               makes or has one it does not make is malformed too (this
+ *               build writes every field, each in one type); rep->diffs
+ *               still lists every difference;
  *  SP_EIO       the record cannot be read; SP_EMODEL, SP_ENUMERIC,
  *  SP_ENOMEM    from the rerun itself (err says which). */
 sp_status sp_replay(const char *path, const sp_replay_options *opt, sp_replay_report *rep,

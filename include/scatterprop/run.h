@@ -90,6 +90,15 @@ int sp_run_decimals(const sp_run *r, size_t j);
 char *sp_run_record_json(const sp_run *r, const sp_run_options *opt, int argc,
                          char *const *argv, int64_t created, sp_error *err);
 
+/* The path of output j's table of the given kind ("percentiles",
+ * "histogram" or "samples") in dir, as sp_run_write_tables names it:
+ * "dir/NAME.kind.csv", into buf (n bytes).  Known before the run (the
+ * names come from the model), so a caller can refuse files in the way
+ * before a long run.  Errors: SP_EUSAGE (j out of range, an unknown kind),
+ * SP_ELIMIT (the path does not fit). */
+sp_status sp_run_table_path(const sp_run *r, const char *dir, size_t j, const char *kind, char *buf,
+                            size_t n, sp_error *err);
+
 /* Writes, for every output NAME, NAME.percentiles.csv and NAME.histogram.csv
  * (and NAME.samples.csv when with_samples is non-zero and samples were
  * kept) into dir, each atomically; existing files are refused unless

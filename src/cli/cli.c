@@ -1,8 +1,13 @@
 /* Shared pieces of the command-line tool. */
 #include "cli.h"
 
+#include <dirent.h>
+#include <signal.h>
 #include <stdarg.h>
+#include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 int cli_report(const sp_error *err)
 {
@@ -88,4 +93,146 @@ void cli_print_caution(FILE *out)
     s = *w ? w + 1 : w;
   }
   fputc('\n', out);
+}
+
+/* ---- Ctrl-C ---------------------------------------------------------------- */
+
+static volatile sig_atomic_t sigint_held, sigint_seen;
+
+static void on_sigint(int sig)
+{
+  (void)sig;
+  sigint_seen = 1;
+  if (sigint_held) return;
+  /* Only async-signal-safe calls here: write(2) and _exit(2). */
+  static const char msg[] = "\nscatterprop: interrupted; nothing was written\n";
+  ssize_t w = write(2, msg, sizeof msg - 1);
+  (void)w;
+  _exit(CLI_INTERRUPTED);
+}
+
+void cli_sigint_install(void)
+{
+  /* A program started with SIGINT ignored (nohup, a background job of a
+   * non-interactive shell) keeps ignoring it, as the shell intended. */
+  struct sigaction old;
+  if (sigaction(SIGINT, NULL, &old) == 0 && old.sa_handler == SIG_IGN) return;
+  struct sigaction sa;
+  memset(&sa, 0, sizeof sa);
+  sa.sa_handler = on_sigint;
+  sigemptyset(&sa.sa_mask);
+  sigaction(SIGINT, &sa, NULL);
+}
+
+void cli_sigint_hold(int hold)
+{
+  sigint_held = hold ? 1 : 0;
+  /* An interrupt noted while held and not acted on stays noted. */
+}
+
+int cli_interrupted(void)
+{
+  return sigint_seen != 0;
+}
+
+/* ---- all-or-nothing outputs -------------------------------------------------- */
+
+static void created_add(cli_created *c, const char *path)
+{
+  if (c->n == c->cap) {
+    size_t cap = c->cap ? 2 * c->cap : 16;
+    char **np = realloc(c->paths, cap * sizeof *np);
+    if (!np) {
+      c->oom = 1;
+      return;
+    }
+    c->paths = np;
+    c->cap = cap;
+  }
+  char *d = strdup(path);
+  if (!d) {
+    c->oom = 1;
+    return;
+  }
+  c->paths[c->n++] = d;
+}
+
+void cli_created_note(cli_created *c, const char *path)
+{
+  struct stat st;
+  if (lstat(path, &st) == 0) return; /* there before: never ours to remove */
+  created_add(c, path);
+}
+
+static int cmp_str(const void *a, const void *b)
+{
+  return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+void cli_created_snapshot(cli_created *c, const char *dir)
+{
+  for (size_t i = 0; i < c->nbefore; i++)
+    free(c->before[i]);
+  free(c->before);
+  c->before = NULL;
+  c->nbefore = 0;
+  DIR *d = opendir(dir);
+  if (!d) return; /* no folder: nothing in it was there before */
+  size_t cap = 0;
+  for (struct dirent *e; (e = readdir(d)) != NULL;) {
+    if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0) continue;
+    if (c->nbefore == cap) {
+      cap = cap ? 2 * cap : 64;
+      char **nb = realloc(c->before, cap * sizeof *nb);
+      if (!nb) {
+        c->oom = 1;
+        break;
+      }
+      c->before = nb;
+    }
+    size_t len = strlen(dir) + strlen(e->d_name) + 2;
+    char *p = malloc(len);
+    if (!p) {
+      c->oom = 1;
+      break;
+    }
+    snprintf(p, len, "%s/%s", dir, e->d_name);
+    c->before[c->nbefore++] = p;
+  }
+  closedir(d);
+  if (c->nbefore) qsort(c->before, c->nbefore, sizeof *c->before, cmp_str);
+}
+
+void cli_created_note_new(cli_created *c, const char *path)
+{
+  if (!path || !path[0]) return;
+  /* A snapshot that could not be taken whole cannot tell new from old:
+   * keep the file rather than risk removing one that was there. */
+  if (c->oom) return;
+  const char *key = path;
+  if (c->nbefore && bsearch(&key, c->before, c->nbefore, sizeof *c->before, cmp_str)) return;
+  created_add(c, path);
+}
+
+size_t cli_created_undo(cli_created *c)
+{
+  size_t removed = 0;
+  for (size_t i = c->n; i-- > 0;) {
+    struct stat st;
+    if (lstat(c->paths[i], &st) != 0) continue;
+    int ok = S_ISDIR(st.st_mode) ? rmdir(c->paths[i]) == 0 : unlink(c->paths[i]) == 0;
+    removed += ok;
+  }
+  return removed;
+}
+
+void cli_created_free(cli_created *c)
+{
+  for (size_t i = 0; i < c->n; i++)
+    free(c->paths[i]);
+  free(c->paths);
+  for (size_t i = 0; i < c->nbefore; i++)
+    free(c->before[i]);
+  free(c->before);
+  memset(c, 0, sizeof *c);
 }

@@ -43,6 +43,42 @@ int cli_parse_double(const char *command, const char *opt, const char *text,
 int cli_parse_u64(const char *command, const char *opt, const char *text,
                   unsigned long long *out, int *rc);
 
+/* ---- Ctrl-C --------------------------------------------------------------
+ * cli_sigint_install() makes SIGINT end the program at once with exit code
+ * CLI_INTERRUPTED and the message "interrupted; nothing was written": for
+ * the parts of a command that write nothing.  While held
+ * (cli_sigint_hold(1)) an interrupt is only noted, for cli_interrupted()
+ * to report: around a run that polls it between blocks, and around the
+ * writing of outputs, which is never cut short (a file is written whole
+ * or, through cli_created_undo, removed again). */
+enum { CLI_INTERRUPTED = 130 };
+void cli_sigint_install(void);
+void cli_sigint_hold(int hold);
+int cli_interrupted(void);
+
+/* ---- all-or-nothing outputs ------------------------------------------------
+ * The files and folders a command has made, so that a failure (or an
+ * interrupt) while writing its outputs can take them away again and leave
+ * things as they were: cli_created_note(path) before a file or folder is
+ * written records it only when nothing is there yet (what was there before
+ * is never removed); cli_created_snapshot(dir) remembers a folder's
+ * entries before a library call writes files into it, and
+ * cli_created_note_new(dir-file) then records a file not among them. */
+typedef struct {
+  char **paths; /* made by this command, in order */
+  size_t n, cap;
+  char **before; /* the snapshot's entries (full paths), sorted */
+  size_t nbefore;
+  int oom; /* a note was lost: undo removes what it knows */
+} cli_created;
+void cli_created_note(cli_created *c, const char *path);
+void cli_created_snapshot(cli_created *c, const char *dir);
+void cli_created_note_new(cli_created *c, const char *path);
+/* Removes every recorded path (files, then folders if empty), newest
+ * first; returns how many were removed. */
+size_t cli_created_undo(cli_created *c);
+void cli_created_free(cli_created *c);
+
 /* Prints the caution paragraph, wrapped, to out. */
 void cli_print_caution(FILE *out);
 

@@ -4,6 +4,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <time.h>
 #include <unistd.h>
 
@@ -77,7 +78,7 @@ void cli_fit_help(FILE *out)
   fprintf(out, "\n"
                "Exit codes: 0 ok, 2 usage, 3 bad input data (also: every family skipped\n"
                "as unable to describe the data), 5 no family fitted because of a numerical\n"
-               "failure, 6 I/O error.\n"
+               "failure, 6 I/O error, 130 interrupted (Ctrl-C: nothing is written).\n"
                "\n");
   cli_print_caution(out);
 }
@@ -417,29 +418,55 @@ int cli_fit_run(int argc, char **argv)
     o.nfamilies = nf;
   }
 
-  /* An existing record is refused before the fit, not after it. */
-  if (outpath && !force && access(outpath, F_OK) == 0) {
+  /* Files in the way are refused before the fit (a bootstrap can take
+   * minutes), not after it. */
+  struct stat ost;
+  if (outpath && !force && stat(outpath, &ost) == 0) {
     sp_fail(&err, SP_EIO, "%s: file exists; refusing to overwrite it", outpath);
-    sp_error_hint(&err, "use --force to replace it");
-    free(fambuf);
-    free(famnames);
-    return cli_report(&err);
-  }
-  /* A chart folder that cannot be used is found before the fit, not after
-   * it (and before the record is written). */
-  if (plotdir) {
-    sp_plot_options po;
-    char tdir[SP_PLOT_PATH_MAX];
-    cli_plot_options(&po, plotdir, force, tdir, sizeof tdir);
-    if (sp_plot_check(&po, &err) != SP_OK) {
-      free(fambuf);
-      free(famnames);
-      return cli_report(&err);
+    sp_error_hint(&err, "give --force to replace it, or choose another name");
+    rc = cli_report(&err);
+  } else if (outpath) {
+    const char *slash = strrchr(outpath, '/');
+    if (slash && slash > outpath) {
+      char parent[4096];
+      snprintf(parent, sizeof parent, "%.*s", (int)(slash - outpath), outpath);
+      if (stat(parent, &ost) != 0 || !S_ISDIR(ost.st_mode)) {
+        sp_fail(&err, SP_EIO, "%s: cannot write the fit record: the folder %s does not exist",
+                outpath, parent);
+        sp_error_hint(&err, "make the folder first (mkdir -p), or choose another --out");
+        rc = cli_report(&err);
+      }
     }
   }
+  if (rc == CLI_OK && archive && sp_archive_check(archive, force, &err) != SP_OK)
+    rc = cli_report(&err);
+  /* A chart folder that cannot be used is found before the fit, not after
+   * it (and before the record is written). */
+  if (rc == CLI_OK && plotdir) {
+    sp_plot_options cpo;
+    char ctdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&cpo, plotdir, force, ctdir, sizeof ctdir);
+    if (sp_plot_check(&cpo, &err) != SP_OK) rc = cli_report(&err);
+  }
+  if (rc != CLI_OK) {
+    free(fambuf);
+    free(famnames);
+    return rc;
+  }
+  /* Ctrl-C ends the fit at once (nothing is written yet); the writing of
+   * the outputs holds it. */
+  cli_sigint_install();
+  cli_created made;
+  memset(&made, 0, sizeof made);
 
   sp_ingest_options io;
   sp_ingest_options_init(&io);
+  /* The lot column is read as text when it has no unit (lots numbered 117,
+   * 131), as summary reads it. */
+  if (by) {
+    io.text_columns = &by;
+    io.ntext_columns = 1;
+  }
   sp_table *t = NULL;
   sp_fit_grouped g;
   memset(&g, 0, sizeof g);
@@ -476,25 +503,41 @@ int cli_fit_run(int argc, char **argv)
       goto done;
     }
   }
+  /* The outputs, all or nothing: an interrupt now waits until they are
+   * written, and a failure takes back what this command had made. */
+  cli_sigint_hold(1);
   /* A record without a chosen family is of no use to a model (the reader
    * refuses it): nothing is written, and the exit code says why. */
-  if (outpath && g.pooled.chosen >= 0 &&
-      sp_record_write_text(outpath, text, force, &err) != SP_OK) {
-    if (err.code == SP_EIO && !err.hint[0])
-      sp_error_hint(&err, "check that the folder of %s exists and is writable", outpath);
-    rc = cli_report(&err);
-    goto done;
+  if (outpath && g.pooled.chosen >= 0) {
+    cli_created_note(&made, outpath);
+    if (sp_record_write_text(outpath, text, force, &err) != SP_OK) {
+      if (err.code == SP_EIO && !force && strstr(err.msg, "file exists"))
+        sp_error_hint(&err, "give --force to replace it, or choose another name");
+      else if (err.code == SP_EIO && !err.hint[0])
+        sp_error_hint(&err, "check that the folder of %s exists and is writable", outpath);
+      rc = cli_report(&err);
+      goto undo;
+    }
   }
   if (plotdir) {
-    if (sp_fitplot_draw(&plan, t, &po, &charts, &err) != SP_OK) {
+    cli_created_note(&made, plotdir);
+    cli_created_snapshot(&made, plotdir);
+    sp_status ps = sp_fitplot_draw(&plan, t, &po, &charts, &err);
+    for (size_t i = 0; i < charts.ncharts; i++) {
+      const sp_plot_output *co = &charts.charts[i].out;
+      cli_created_note_new(&made, co->data);
+      cli_created_note_new(&made, co->script);
+      cli_created_note_new(&made, co->png);
+      cli_created_note_new(&made, co->svg);
+    }
+    if (ps != SP_OK) {
       rc = cli_report(&err);
-      if (charts.ndrawn) cli_plot_print(stderr, &charts, plotdir);
-      goto done;
+      goto undo;
     }
   }
   if (archive && archive_fit(archive, text, outpath, column, &charts, force, &err) != SP_OK) {
     rc = cli_report(&err);
-    goto done;
+    goto undo;
   }
   if (json) {
     printf("%s\n", text);
@@ -539,7 +582,26 @@ int cli_fit_run(int argc, char **argv)
             outpath ? "; nothing was written to " : "", outpath ? outpath : "");
     rc = failed ? CLI_NUMERIC : CLI_DATA;
   }
+  if (rc == CLI_OK && cli_interrupted()) {
+    fprintf(stderr, "scatterprop: interrupted while the outputs were being written; they "
+                    "were completed first\n");
+    rc = CLI_INTERRUPTED;
+  }
+  goto done;
+undo : {
+  size_t removed = cli_created_undo(&made);
+  if (removed)
+    fprintf(stderr,
+            "scatterprop: the %zu file%s and folder%s this fit had written were "
+            "removed again\n",
+            removed, removed == 1 ? "" : "s", removed == 1 ? "" : "s");
+  if (cli_interrupted()) {
+    fprintf(stderr, "scatterprop: interrupted while writing the outputs\n");
+    rc = CLI_INTERRUPTED;
+  }
+}
 done:
+  cli_created_free(&made);
   sp_fitplot_charts_free(&charts);
   sp_fitplot_plan_clear(&plan);
   free(text);

@@ -64,14 +64,6 @@ void cli_propagate_help(FILE *out)
   cli_print_caution(out);
 }
 
-/* Ctrl-C stops the run at the next block; nothing is written. */
-static volatile sig_atomic_t interrupted;
-static void on_sigint(int sig)
-{
-  (void)sig;
-  interrupted = 1;
-}
-
 typedef struct {
   int tty;
   time_t start;
@@ -92,7 +84,7 @@ static int on_progress(void *user, uint64_t done, uint64_t total)
       p->shown = 1;
     }
   }
-  return interrupted;
+  return cli_interrupted();
 }
 
 static void put(FILE *out, int dec, double v)
@@ -293,6 +285,29 @@ static int mkdir_p(const char *dir, sp_error *err)
   return 1;
 }
 
+/* Without --force: CLI_OK when none of the files --out would get exists,
+ * else the error naming the first (before the run, so none is wasted). */
+static int check_out_free(const sp_run *run, const char *outdir, int keep_samples)
+{
+  sp_error e;
+  sp_error_clear(&e);
+  char path[4096];
+  struct stat st;
+  snprintf(path, sizeof path, "%s/run.json", outdir);
+  int taken = stat(path, &st) == 0;
+  const char *kinds[] = {"percentiles", "histogram", "samples"};
+  for (size_t j = 0; !taken && j < sp_model_output_count(sp_run_model(run)); j++)
+    for (int k = 0; !taken && k < (keep_samples ? 3 : 2); k++) {
+      if (sp_run_table_path(run, outdir, j, kinds[k], path, sizeof path, &e) != SP_OK)
+        return cli_report(&e);
+      taken = stat(path, &st) == 0;
+    }
+  if (!taken) return CLI_OK;
+  sp_fail(&e, SP_EIO, "%s: file exists; refusing to overwrite it", path);
+  sp_error_hint(&e, "give --force to replace the run's files, or choose another --out");
+  return cli_report(&e);
+}
+
 int cli_propagate_run(int argc, char **argv)
 {
   const char *model = NULL, *outdir = NULL, *plotdir = NULL, *archive = NULL;
@@ -381,20 +396,9 @@ int cli_propagate_run(int argc, char **argv)
   ro.engine.npercentiles = npcts;
   /* The charts need every sample too; only --keep-samples writes them out. */
   ro.engine.keep_samples = keep_samples || plotdir != NULL;
-  /* Refuse an existing record before the run, not after it. */
-  if (outdir && !force) {
-    char rp[4096];
-    struct stat rst;
-    snprintf(rp, sizeof rp, "%s/run.json", outdir);
-    if (stat(rp, &rst) == 0) {
-      sp_error e;
-      sp_error_clear(&e);
-      sp_fail(&e, SP_EIO, "%s: file exists; refusing to overwrite it", rp);
-      sp_error_hint(&e, "give --force to replace the run's files, or choose another --out");
-      free(pcts);
-      return cli_report(&e);
-    }
-  }
+  /* Ctrl-C from here on ends the program at once (nothing is written yet);
+   * the run and the writing of its outputs hold it (below). */
+  cli_sigint_install();
 
   sp_error err;
   sp_error_clear(&err);
@@ -428,36 +432,38 @@ int cli_propagate_run(int argc, char **argv)
     free(pcts);
     return rc;
   }
-  /* A chart folder that cannot be used, or charts in the way, are found
-   * before the run, not after it. */
-  if (plotdir) {
-    sp_runplot_options po;
-    sp_runplot_options_init(&po);
-    char tdir[SP_PLOT_PATH_MAX];
-    cli_plot_options(&po.plot, plotdir, force, tdir, sizeof tdir);
-    if (sp_runplot_check(sp_run_model(run), &po, &err) != SP_OK) {
-      sp_run_free(run);
-      free(pcts);
-      return cli_report(&err);
-    }
+  /* Refuse files in the way before the run, not after it: the record and
+   * every table of --out (the model names them), the archive folder, a
+   * chart folder that cannot be used and charts in the way. */
+  if (outdir && !force) rc = check_out_free(run, outdir, keep_samples);
+  if (rc == CLI_OK && archive && sp_archive_check(archive, force, &err) != SP_OK)
+    rc = cli_report(&err);
+  if (rc == CLI_OK && plotdir) {
+    sp_runplot_options cpo;
+    sp_runplot_options_init(&cpo);
+    char ctdir[SP_PLOT_PATH_MAX];
+    cli_plot_options(&cpo.plot, plotdir, force, ctdir, sizeof ctdir);
+    if (sp_runplot_check(sp_run_model(run), &cpo, &err) != SP_OK) rc = cli_report(&err);
+  }
+  if (rc != CLI_OK) {
+    sp_run_free(run);
+    free(pcts);
+    return rc;
   }
   progress_state ps = {isatty(2), time(NULL), 0};
   ro.engine.progress = on_progress;
   ro.engine.progress_user = &ps;
-  struct sigaction sa, old;
-  memset(&sa, 0, sizeof sa);
-  sa.sa_handler = on_sigint;
-  sigemptyset(&sa.sa_mask);
-  sigaction(SIGINT, &sa, &old);
+  /* A cancelled run is not written: its summaries would be thrown away. */
+  ro.engine.discard_cancelled = 1;
+  cli_sigint_hold(1);
   sp_status st = sp_run_execute(run, &ro, &err);
-  sigaction(SIGINT, &old, NULL);
   if (ps.shown) fprintf(stderr, "\r%60s\r", "");
-  if (st != SP_OK) {
+  if (st != SP_OK && !cli_interrupted()) {
     rc = cli_report(&err);
-  } else if (interrupted || sp_run_result(run)->status == SP_ENGINE_CANCELLED) {
+  } else if (cli_interrupted() || sp_run_result(run)->status == SP_ENGINE_CANCELLED) {
     fprintf(stderr, "scatterprop: interrupted after %llu samples; nothing was written\n",
             (unsigned long long)sp_run_result(run)->samples);
-    rc = 130;
+    rc = CLI_INTERRUPTED;
   }
   if (rc != CLI_OK) {
     sp_run_free(run);
@@ -465,24 +471,65 @@ int cli_propagate_run(int argc, char **argv)
     return rc;
   }
 
+  /* The outputs, all or nothing: an interrupt now waits until they are
+   * written; a failure takes back what this command had made. */
+  cli_created made;
+  memset(&made, 0, sizeof made);
   char *record = sp_run_record_json(run, &ro, argc, argv, (int64_t)time(NULL), &err);
   if (!record) rc = cli_report(&err);
   /* The folder is made only now, so that a run refused or failed leaves
    * nothing behind. */
-  if (rc == CLI_OK && outdir && !mkdir_p(outdir, &err)) rc = cli_report(&err);
+  if (rc == CLI_OK && outdir) {
+    cli_created_note(&made, outdir);
+    if (!mkdir_p(outdir, &err)) rc = cli_report(&err);
+  }
   if (rc == CLI_OK && outdir) {
     char path[4096];
+    for (size_t j = 0; j < sp_model_output_count(sp_run_model(run)); j++) {
+      const char *kinds[] = {"percentiles", "histogram", "samples"};
+      for (int k = 0; k < (keep_samples ? 3 : 2); k++)
+        if (sp_run_table_path(run, outdir, j, kinds[k], path, sizeof path, &err) == SP_OK)
+          cli_created_note(&made, path);
+    }
     snprintf(path, sizeof path, "%s/run.json", outdir);
+    cli_created_note(&made, path);
     if (sp_run_write_tables(run, outdir, keep_samples, force, &err) != SP_OK ||
         sp_file_write_atomic(path, record, strlen(record), force, &err) != SP_OK)
       rc = cli_report(&err);
   }
   sp_runplot_set plots;
   memset(&plots, 0, sizeof plots);
-  if (rc == CLI_OK && plotdir && !mkdir_p(plotdir, &err)) rc = cli_report(&err);
-  if (rc == CLI_OK && plotdir) rc = draw_plots(run, plotdir, force, &plots);
+  if (rc == CLI_OK && plotdir) {
+    cli_created_note(&made, plotdir);
+    if (!mkdir_p(plotdir, &err)) rc = cli_report(&err);
+  }
+  if (rc == CLI_OK && plotdir) {
+    cli_created_snapshot(&made, plotdir);
+    rc = draw_plots(run, plotdir, force, &plots);
+    for (size_t i = 0; i < plots.ncharts; i++) {
+      const sp_plot_output *po = &plots.charts[i].out;
+      cli_created_note_new(&made, po->data);
+      cli_created_note_new(&made, po->script);
+      cli_created_note_new(&made, po->png);
+      cli_created_note_new(&made, po->svg);
+    }
+  }
+  /* The archive comes last: it is made whole or not at all by itself. */
   if (rc == CLI_OK && archive && archive_run(archive, record, &plots, force, &err) != SP_OK)
     rc = cli_report(&err);
+  if (rc != CLI_OK) {
+    size_t removed = cli_created_undo(&made);
+    if (removed)
+      fprintf(stderr,
+              "scatterprop: the %zu file%s and folder%s this run had written were "
+              "removed again\n",
+              removed, removed == 1 ? "" : "s", removed == 1 ? "" : "s");
+    if (cli_interrupted()) {
+      fprintf(stderr, "scatterprop: interrupted while writing the outputs\n");
+      rc = CLI_INTERRUPTED;
+    }
+  }
+  cli_created_free(&made);
   if (rc == CLI_OK) {
     if (json) {
       printf("%s\n", record);
@@ -519,6 +566,11 @@ int cli_propagate_run(int argc, char **argv)
              "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
       cli_print_caution(stdout);
     }
+  }
+  if (rc == CLI_OK && cli_interrupted()) {
+    fprintf(stderr, "scatterprop: interrupted while the outputs were being written; they "
+                    "were completed first\n");
+    rc = CLI_INTERRUPTED;
   }
   sp_runplot_set_clear(&plots);
   free(record);

@@ -23,8 +23,11 @@ void cli_replay_help(FILE *out)
           "Timestamps, the command line, the thread count, the build facts and the\n"
           "paths of files (whose contents are compared by hash) are not compared.\n"
           "Numbers are compared bit for bit when the record was made by this build;\n"
-          "when the tool version, git revision, compiler, GSL, libc or machine\n"
-          "differ (or the record does not say), within a relative tolerance of %g.\n"
+          "when the tool version, git revision, compiler or its flags, a library\n"
+          "(GSL, jansson, libcsv, udunits2, libc), the machine or its processor's\n"
+          "features differ (or the record does not say), within a relative\n"
+          "tolerance of %g, saying which differ.  A record with a field missing or\n"
+          "of the wrong type is refused, naming the field.\n"
           "\n"
           "Options:\n"
           "  --threads K       threads of the rerun (default: all); results do not depend on K\n"
@@ -35,7 +38,7 @@ void cli_replay_help(FILE *out)
           "\n"
           "Exit codes: 0 identical, 1 results differ, 2 usage, 3 an input file changed or\n"
           "is missing (or the record is malformed), 4 bad model, 5 numerical failure,\n"
-          "6 I/O error.\n"
+          "6 I/O error, 130 interrupted.\n"
           "\n",
           SP_REPLAY_DEFAULT_TOLERANCE, CLI_REPLAY_SHOWN);
   cli_print_caution(out);
@@ -102,6 +105,8 @@ int cli_replay_run(int argc, char **argv)
   sp_error err;
   sp_error_clear(&err);
   sp_replay_report rep;
+  /* A replay writes nothing: Ctrl-C ends it at once (exit 130). */
+  cli_sigint_install();
   sp_status st = sp_replay(record, &o, &rep, &err);
   if (rep.build_differs && (st == SP_OK || st == SP_EDIFFERS))
     fprintf(stderr, "scatterprop: note: %s was made by another build (%s); numbers are "
@@ -129,9 +134,16 @@ int cli_replay_run(int argc, char **argv)
       printf("  ... and %zu more%s\n", rep.ndiffs_total - shown,
              all ? "" : " (--all lists them)");
     rc = CLI_DIFFERS;
+  } else if (rep.nbad > 0) {
+    /* The files first, the hint on what to do after them. */
+    char hint[sizeof err.hint];
+    snprintf(hint, sizeof hint, "%s", err.hint);
+    err.hint[0] = '\0';
+    rc = cli_report(&err);
+    print_inputs(&rep);
+    if (hint[0]) fprintf(stderr, "  hint: %s\n", hint);
   } else {
     rc = cli_report(&err);
-    if (rep.nbad > 0) print_inputs(&rep);
   }
   sp_replay_report_clear(&rep);
   return rc;

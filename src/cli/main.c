@@ -34,12 +34,11 @@ static void main_help(FILE *out)
           "Commands:\n");
   for (size_t i = 0; i < ncommands; i++)
     fprintf(out, "  %-10s %s\n", commands[i].name, commands[i].summary);
-  fprintf(out,
-          "\n"
-          "Run 'scatterprop COMMAND --help' for a command's options.\n"
-          "Exit codes: 0 ok, 1 differs, 2 usage, 3 bad input data, 4 bad model,\n"
-          "5 numerical failure, 6 I/O error.\n"
-          "\n");
+  fprintf(out, "\n"
+               "Run 'scatterprop COMMAND --help' for a command's options.\n"
+               "Exit codes: 0 ok, 1 differs, 2 usage, 3 bad input data, 4 bad model,\n"
+               "5 numerical failure, 6 I/O error, 130 interrupted (Ctrl-C).\n"
+               "\n");
   cli_print_caution(out);
 }
 
