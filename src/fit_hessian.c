@@ -88,7 +88,8 @@ double sp_fit_fd_adapt(sp_fit_coord_fn f, void *ctx, double *v, size_t j, double
     h = hmax;
     band = 2.0;
   }
-  for (int it = 0; it < 64; it++, band = 2.0) {
+  for (int it = 0; it < 64; it++) {
+    if (it > 0) band = 2.0;
     if (!(h >= hmin)) return NAN;
     double hs = (v0 + h) - v0;
     v[j] = v0 + hs;

@@ -564,8 +564,10 @@ static sp_status draw_set(const vset *s, const sp_fitplot_plan *plan, const sp_p
     curves[i].label = labels[i];
   }
   char who[2 * SP_PLOT_LABEL_MAX];
-  if (s->pooled) snprintf(who, sizeof who, "%s, all lots pooled", plan->column);
-  else if (s->lot) snprintf(who, sizeof who, "%s, lot %s", plan->column, s->lot);
+  /* The grouping column's own name (lot, station, ...) says what a group is. */
+  const char *gname = plan->group_column ? plan->group_column : "lot";
+  if (s->pooled) snprintf(who, sizeof who, "%s, every %s pooled", plan->column, gname);
+  else if (s->lot) snprintf(who, sizeof who, "%s, %s %s", plan->column, gname, s->lot);
   else snprintf(who, sizeof who, "%s", plan->column);
   char title[3 * SP_PLOT_LABEL_MAX];
   sp_plot_fit spec = {.title = title, .axis = {plan->column, plan->unit}, .x = s->x,

@@ -141,6 +141,19 @@ static void put_params(FILE *out, const sp_fit_candidate *c)
   }
 }
 
+/* What a method's record token means, for a person reading the table. */
+static const char *method_words(sp_fit_method m)
+{
+  switch (m) {
+  case SP_FIT_METHOD_FAMILY: return "maximum likelihood, the family's closed form or Newton";
+  case SP_FIT_METHOD_SIMPLEX: return "maximum likelihood, Nelder-Mead then Newton";
+  case SP_FIT_METHOD_PROFILE: return "maximum likelihood, profiled over the location";
+  case SP_FIT_METHOD_MPS: return "maximum product of spacings, Cheng & Amin 1983";
+  case SP_FIT_METHOD_NONE: break;
+  }
+  return "every parameter fixed";
+}
+
 static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
 {
   legend l = {{0}, 0};
@@ -214,8 +227,9 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
   }
   if (r->chosen >= 0) {
     const sp_fit_candidate *c = &r->cand[r->chosen];
-    fprintf(out, "\nChosen: %s (%s), method %s%s\n", c->family->name, c->family->title,
-            sp_fit_method_name(c->method), c->converged ? "" : ", not converged");
+    fprintf(out, "\nChosen: %s (%s), method %s (%s)%s\n", c->family->name, c->family->title,
+            sp_fit_method_name(c->method), method_words(c->method),
+            c->converged ? "" : ", not converged");
     fprintf(out, "  why: %s\n", r->reason);
     for (size_t p = 0; p < c->nparam; p++) {
       fprintf(out, "  %-12s %.10g", c->family->param_names[p], c->theta[p]);
