@@ -699,9 +699,11 @@ static sp_status draw_charts(const sp_fitplot_plan *plan, const sp_table *t,
   sp_fitplot_stem(plan->column, NULL, 0, NULL, colstem, sizeof colstem);
   for (size_t k = 0; k < nsets; k++) {
     unique_base(sets, k, plan->column);
-    char subject[SP_PLOT_LABEL_MAX + 16];
+    char subject[2 * SP_PLOT_LABEL_MAX + 16];
     if (sets[k].pooled) snprintf(subject, sizeof subject, "pooled");
-    else if (sets[k].lot) snprintf(subject, sizeof subject, "lot %s", sets[k].lot);
+    else if (sets[k].lot)
+      snprintf(subject, sizeof subject, "%s %s",
+               plan->group_column ? plan->group_column : "lot", sets[k].lot);
     else snprintf(subject, sizeof subject, "%s", plan->column);
     static const char *const suffix[3] = {"hist", "prob", "ecdf"};
     static const sp_fitplot_kind kinds[3] = {SP_FITPLOT_HIST, SP_FITPLOT_PROB, SP_FITPLOT_ECDF};
@@ -719,10 +721,11 @@ static sp_status draw_charts(const sp_fitplot_plan *plan, const sp_table *t,
     }
   }
   for (size_t pg = 0; pg < npages; pg++) {
-    char suffix[32], subject[64];
+    char suffix[32], subject[SP_PLOT_LABEL_MAX + 64];
     if (npages == 1) {
       snprintf(suffix, sizeof suffix, "lots");
-      snprintf(subject, sizeof subject, "all lots");
+      snprintf(subject, sizeof subject, "every %s",
+               plan->group_column ? plan->group_column : "lot");
     } else {
       snprintf(suffix, sizeof suffix, "lots%zu", pg + 1);
       snprintf(subject, sizeof subject, "lots %zu-%zu of %zu", pg * SP_PLOT_LOTS_MAX + 1,

@@ -22,7 +22,7 @@ add_test(NAME fit_cli_table
   COMMAND scatterprop fit ${PROJECT_SOURCE_DIR}/data/wire_d.csv --column wire_d
           --families normal,lognormal,weibull,gumbel_min --bootstrap 99)
 set_tests_properties(fit_cli_table PROPERTIES TIMEOUT 60
-  PASS_REGULAR_EXPRESSION "rank +family +k +logL +AICc +BIC +A² +p +D +p +W² +p +verdict\n +1 +[a-z_0-9]+ +2 +[-0-9.]+ +[-0-9.]+ +[-0-9.]+ +[0-9.]+ +[<>]?[0-9.]+[a-z] .* chosen\n +[a-z]+ [-0-9.e+]+ ± .*Chosen: [a-z_0-9]+ .*why: [a-z_0-9]+: lowest AICc.*p-values:.*CAUTION")
+  PASS_REGULAR_EXPRESSION "rank +family +k +logL +AICc +BIC +A² +p +D +p +W² +p +verdict\n +1 +[a-z_0-9]+ +2 +[-0-9.]+ +[-0-9.]+ +[-0-9.]+ +[0-9.]+ +[<>]?[0-9.]+[a-z] .* chosen\n +[a-z]+ [-0-9.e+]+ ± .*Chosen: [a-z_0-9]+, .*why: [a-z_0-9]+: lowest AICc.*p-values:.*CAUTION")
 
 # With --by: a table per lot, the pooled one, and the pooled choice fitted
 # to each lot side by side.

@@ -227,7 +227,7 @@ static void print_fit(FILE *out, const sp_fit_result *r, const char *title)
   }
   if (r->chosen >= 0) {
     const sp_fit_candidate *c = &r->cand[r->chosen];
-    fprintf(out, "\nChosen: %s (%s), method %s (%s)%s\n", c->family->name, c->family->title,
+    fprintf(out, "\nChosen: %s, %s; method %s (%s)%s\n", c->family->name, c->family->title,
             sp_fit_method_name(c->method), method_words(c->method),
             c->converged ? "" : ", not converged");
     fprintf(out, "  why: %s\n", r->reason);
