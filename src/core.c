@@ -199,6 +199,52 @@ sp_status sp_parse_u64(const char *text, uint64_t *out, sp_error *err)
   return SP_OK;
 }
 
+sp_status sp_parse_count(const char *text, uint64_t *out, sp_error *err)
+{
+  if (!strpbrk(text, "eE.")) return sp_parse_u64(text, out, err);
+  const char *s = text;
+  uint64_t v = 0;
+  int ndig = 0, frac = 0, seen_dot = 0;
+  for (; *s && *s != 'e' && *s != 'E'; s++) {
+    if (*s == '.' && !seen_dot) {
+      seen_dot = 1;
+      continue;
+    }
+    if (*s < '0' || *s > '9')
+      return sp_fail(err, SP_EUSAGE, "'%s' is not a whole number", text);
+    unsigned d = (unsigned)(*s - '0');
+    if (v > (UINT64_MAX - d) / 10) return sp_fail(err, SP_EUSAGE, "'%s' is too large", text);
+    v = v * 10 + d;
+    ndig++;
+    frac += seen_dot;
+  }
+  if (ndig == 0) return sp_fail(err, SP_EUSAGE, "'%s' is not a whole number", text);
+  long e = 0;
+  if (*s) {
+    s++;
+    if (*s == '+') s++;
+    if (!*s) return sp_fail(err, SP_EUSAGE, "'%s' is not a whole number", text);
+    for (; *s; s++) {
+      if (*s < '0' || *s > '9')
+        return sp_fail(err, SP_EUSAGE, "'%s' is not a whole number", text);
+      e = e * 10 + (*s - '0');
+      if (e > 1000) return sp_fail(err, SP_EUSAGE, "'%s' is too large", text);
+    }
+  }
+  long net = e - frac;
+  for (; net < 0; net++) {
+    if (v % 10 != 0)
+      return sp_fail(err, SP_EUSAGE, "'%s' is not a whole number", text);
+    v /= 10;
+  }
+  for (; net > 0 && v != 0; net--) {
+    if (v > UINT64_MAX / 10) return sp_fail(err, SP_EUSAGE, "'%s' is too large", text);
+    v *= 10;
+  }
+  *out = v;
+  return SP_OK;
+}
+
 /* ---- atomic output files ---------------------------------------------- */
 
 struct sp_outfile {

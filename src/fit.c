@@ -682,7 +682,16 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
       const sp_family *f = sp_family_find(opt->families[i]);
       if (!f) {
         sp_fail(err, SP_EUSAGE, "unknown family '%s'", opt->families[i]);
-        return sp_error_hint(err, "run 'scatterprop fit --help' for the list of families");
+        char names[512];
+        size_t len = 0;
+        names[0] = '\0';
+        for (size_t k = 0; k < sp_family_count(); k++) {
+          const sp_family *g = sp_family_at(k);
+          if (!(g->flags & SP_FAMILY_FIT) || len >= sizeof names) continue;
+          int w = snprintf(names + len, sizeof names - len, "%s%s", len ? ", " : "", g->name);
+          if (w > 0) len += (size_t)w;
+        }
+        return sp_error_hint(err, "the families that can be fitted: %s", names);
       }
       for (size_t j = 0; j < nf; j++)
         if (fams[j] == f) {

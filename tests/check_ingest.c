@@ -741,6 +741,37 @@ START_TEST(test_parse_double_strict)
 }
 END_TEST
 
+/* Counts on a command line: "1e6" samples is a million (common practice,
+ * no source); a count must be a whole number exactly. */
+START_TEST(test_parse_count)
+{
+  sp_error err;
+  uint64_t v = 7;
+  sp_error_clear(&err);
+  ck_assert_int_eq(sp_parse_count("250000", &v, &err), SP_OK);
+  ck_assert_uint_eq(v, 250000);
+  ck_assert_int_eq(sp_parse_count("1e6", &v, &err), SP_OK);
+  ck_assert_uint_eq(v, 1000000);
+  ck_assert_int_eq(sp_parse_count("2.5E6", &v, &err), SP_OK);
+  ck_assert_uint_eq(v, 2500000);
+  ck_assert_int_eq(sp_parse_count("1e+3", &v, &err), SP_OK);
+  ck_assert_uint_eq(v, 1000);
+  ck_assert_int_eq(sp_parse_count("2.50e1", &v, &err), SP_OK);
+  ck_assert_uint_eq(v, 25);
+  ck_assert_int_eq(sp_parse_count("1.8446744073709551615e19", &v, &err), SP_OK);
+  ck_assert(v == UINT64_MAX);
+  static const char *const bad[] = {"1.5e0", "1e-3", "2.5", "-1e3", "1e", "e5", " 1e3",
+                                    "1e3 ", "1..0", "1e20", "0x10", ""};
+  for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
+    v = 7;
+    sp_error_clear(&err);
+    ck_assert_msg(sp_parse_count(bad[i], &v, &err) == SP_EUSAGE, "'%s' accepted", bad[i]);
+    ck_assert_uint_eq(v, 7);
+    ck_assert_msg(strstr(err.msg, "whole number") || strstr(err.msg, "too large"), "%s", err.msg);
+  }
+}
+END_TEST
+
 static Suite *ingest_suite(void)
 {
   Suite *s = suite_create("ingest");
@@ -778,6 +809,7 @@ static Suite *ingest_suite(void)
   tcase_add_test(tc, test_file_and_sha256);
   tcase_add_test(tc, test_many_rows_chunked);
   tcase_add_test(tc, test_parse_double_strict);
+  tcase_add_test(tc, test_parse_count);
   tcase_add_test(tc, test_utf8);
   tcase_add_test(tc, test_utf16_refused);
   tcase_add_test(tc, test_cr_line_ends);

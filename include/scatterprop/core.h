@@ -78,6 +78,11 @@ sp_status sp_parse_double(const char *text, char decimal_sep, double *out,
                           sp_error *err);
 /* Strict parse of a whole string as an unsigned 64-bit integer (decimal). */
 sp_status sp_parse_u64(const char *text, uint64_t *out, sp_error *err);
+/* A count as people type it on a command line: a decimal integer (as
+ * sp_parse_u64) or exponent notation that names a whole number exactly
+ * ("1e6", "2.5E6", "1e+6"); "1.5e0", "1e-3", signs, blanks and values above
+ * UINT64_MAX are refused with a message that quotes the text. */
+sp_status sp_parse_count(const char *text, uint64_t *out, sp_error *err);
 
 /* Atomic output file: written under a temporary name in the same folder,
  * flushed, fsync'ed and renamed into place on commit (and the folder

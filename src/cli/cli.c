@@ -69,7 +69,7 @@ int cli_parse_u64(const char *command, const char *opt, const char *text,
   sp_error e;
   sp_error_clear(&e);
   uint64_t v;
-  if (sp_parse_u64(text, &v, &e) != SP_OK) {
+  if (sp_parse_count(text, &v, &e) != SP_OK) {
     *rc = cli_usage(command, "%s: %s", opt, e.msg);
     return 0;
   }

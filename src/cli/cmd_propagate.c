@@ -31,7 +31,7 @@ void cli_propagate_help(FILE *out)
           "each limit with a 95%% interval, and each input's share of the spread.\n"
           "\n"
           "Options:\n"
-          "  --samples N        Monte Carlo trials (default 1000000)\n"
+          "  --samples N        Monte Carlo trials, as 250000 or 2.5e5 (default 1e6)\n"
           "  --tolerance DIGITS adaptive: batches until the mean, standard uncertainty and\n"
           "                     interval ends are stable to DIGITS significant digits\n"
           "                     (JCGM 101:2008, 7.9)\n"
