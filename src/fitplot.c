@@ -709,6 +709,7 @@ static sp_status draw_charts(const sp_fitplot_plan *plan, const sp_table *t,
     static const sp_fitplot_kind kinds[3] = {SP_FITPLOT_HIST, SP_FITPLOT_PROB, SP_FITPLOT_ECDF};
     for (int j = 0; j < 3; j++) {
       sp_fitplot_chart *c = new_chart(out, kinds[j], sets[k].base, suffix[j], subject);
+      c->one_lot = sets[k].lot && !sets[k].pooled;
       const sp_fitplot_fit *f = sets[k].fit;
       if (sets[k].n < 2)
         snprintf(c->note, sizeof c->note, "%zu value%s; a chart needs 2 or more", sets[k].n,

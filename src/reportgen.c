@@ -1051,7 +1051,7 @@ static sp_status fit_charts(builder *b, const chart_env *env, const fitsrc *f, s
   const char *col = f->col->name;
   for (size_t i = 0; st == SP_OK && i < charts.ncharts; i++) {
     const sp_fitplot_chart *c = &charts.charts[i];
-    if (c->kind != SP_FITPLOT_LOTS && strncmp(c->subject, "lot ", 4) == 0) continue;
+    if (c->one_lot) continue;
     const char *cap = NULL;
     switch (c->kind) {
     case SP_FITPLOT_HIST:
@@ -1071,9 +1071,9 @@ static sp_status fit_charts(builder *b, const chart_env *env, const fitsrc *f, s
                      col);
       break;
     case SP_FITPLOT_LOTS:
-      cap = pool_fmt(&b->p, "%s: empirical CDF of each lot (column %s), with the chosen fit "
-                            "to all lots pooled (dashed).",
-                     col, f->by ? f->by : "?");
+      cap = pool_fmt(&b->p, "%s: empirical CDF of each %s, with the chosen fit to all of "
+                            "them pooled (dashed).",
+                     col, f->by ? f->by : "lot");
       break;
     }
     if (!c->drawn) add_figure(b, NULL, cap, c->note);

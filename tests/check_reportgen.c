@@ -752,6 +752,37 @@ START_TEST(test_hostile_files_end_to_end)
 }
 END_TEST
 
+/* A fit grouped by a column not named "lot": the report shows the column's
+ * own charts (pooled) and the groups side by side, never a group's charts
+ * (those are 'scatterprop plot's), and says what a group is. */
+START_TEST(test_groups_of_another_name)
+{
+  FILE *fp = fopen(path_in("s.csv"), "wb");
+  ck_assert_ptr_nonnull(fp);
+  fprintf(fp, "station,F [N]\n");
+  for (int i = 0; i < 60; i++) {
+    int k = (i * 23) % 60;
+    fprintf(fp, "%s,%.3f\n", i % 3 == 0 ? "S1" : i % 3 == 1 ? "S2" : "S3",
+            100 + 5 * gsl_cdf_ugaussian_Pinv((k + 0.5) / 60));
+  }
+  fclose(fp);
+  ck_assert_msg(cli("fit s.csv --column F --by station --families normal --pvalues none "
+                    "--out s.json") == 0,
+                "fit: %s", err_text);
+  write_file(path_in("s.spm"), "input f [N] ~ fit(\"s.json\")\n"
+                               "output y [N] = 2*f\n");
+  ck_assert_msg(cli("propagate s.spm --samples 5000 --out srun") == 0, "propagate: %s", err_text);
+  ck_assert_msg(cli("report srun/run.json") == 0, "report: %s", err_text);
+  /* 3 pooled charts and the groups side by side; 5 of the run */
+  ASSERT_HAS(out_text, "9 figures, 9 drawn");
+  char *html = slurp(path_in("srun/report.html"));
+  ASSERT_HAS(html, "empirical CDF of each station, with the chosen fit");
+  ASSERT_HAS(html, "histogram of the 60 values");
+  ASSERT_LACKS(html, "station S1");
+  free(html);
+}
+END_TEST
+
 static Suite *suite(void)
 {
   Suite *s = suite_create("reportgen");
@@ -772,6 +803,7 @@ static Suite *suite(void)
   tcase_add_test(t, test_plot_and_report_on_the_wrong_file);
   tcase_add_test(t, test_propagate_plots_checked_before_the_run);
   tcase_add_test(t, test_hostile_files_end_to_end);
+  tcase_add_test(t, test_groups_of_another_name);
   suite_add_tcase(s, t);
   return s;
 }

@@ -125,7 +125,11 @@ const char *sp_fitplot_kind_name(sp_fitplot_kind k);
 typedef struct {
   sp_fitplot_kind kind;
   char stem[SP_PLOT_STEM_MAX + 1];
-  char subject[SP_PLOT_LABEL_MAX + 16]; /* "wire_d", "lot W24-117", "pooled" */
+  /* "wire_d", "lot W24-117" (the grouping column's name and the group),
+   * "pooled", "every lot" */
+  char subject[2 * SP_PLOT_LABEL_MAX + 16];
+  int one_lot; /* 1: the chart of a single lot (with --by); 0: the column's,
+                * pooled or the lots side by side */
   int drawn;
   char note[SP_FIT_TEXT_MAX];
   sp_plot_output out;
