@@ -74,6 +74,22 @@ START_TEST(test_bad_number_position)
 }
 END_TEST
 
+/* A statistic that rounds to zero prints without a sign: three evenly
+ * spaced readings have skewness 0 exactly in theory, -1e-16 or so in
+ * floating point. */
+START_TEST(test_no_negative_zero)
+{
+  char path[] = "/tmp/even_XXXXXX";
+  int fd = mkstemp(path);
+  close(fd);
+  write_file(path, "d [mm]\n1.5\n1.6\n1.7\n");
+  ck_assert_int_eq(cli("summary %s", path), 0);
+  ASSERT_HAS(out_text, "1.700   0.00      -");
+  ASSERT_LACKS(out_text, " -0.00 ");
+  unlink(path);
+}
+END_TEST
+
 START_TEST(test_demo_summary_by_lot)
 {
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --column wire_d --by lot", SP_SOURCE_DIR), 0);
@@ -185,11 +201,13 @@ static Suite *cli_suite(void)
 {
   Suite *s = suite_create("cli");
   TCase *tc = tcase_create("summary");
+  tcase_set_timeout(tc, 120); /* the end-to-end tests run several commands */
   tcase_add_checked_fixture(tc, setup, teardown);
   tcase_add_test(tc, test_help_and_caution);
   tcase_add_test(tc, test_usage_errors);
   tcase_add_test(tc, test_missing_file_is_io_error);
   tcase_add_test(tc, test_bad_number_position);
+  tcase_add_test(tc, test_no_negative_zero);
   tcase_add_test(tc, test_demo_summary_by_lot);
   tcase_add_test(tc, test_missing_values_counted);
   tcase_add_test(tc, test_summary_of_text_column_refused);

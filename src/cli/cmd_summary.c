@@ -31,18 +31,28 @@ void cli_summary_help(FILE *out)
   cli_print_caution(out);
 }
 
+/* v with the given decimals, without the sign of a value that rounds to
+ * zero ("-0.00" reads as a negative value that is not there). */
+static void put_fixed(FILE *out, int width, int decimals, double v)
+{
+  char buf[400];
+  snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  if (buf[0] == '-' && strspn(buf + 1, "0.") == strlen(buf + 1)) memmove(buf, buf + 1, strlen(buf));
+  fprintf(out, " %*s", width, buf);
+}
+
 /* Prints v with the block's decimals (or 6 significant digits). */
 static void put_value(FILE *out, int width, int decimals, double v)
 {
   if (!isfinite(v)) fprintf(out, " %*s", width, "-");
-  else if (decimals >= 0) fprintf(out, " %*.*f", width, decimals, v);
+  else if (decimals >= 0) put_fixed(out, width, decimals, v);
   else fprintf(out, " %*.6g", width, v);
 }
 
 static void put_shape(FILE *out, double v)
 {
   if (!isfinite(v)) fprintf(out, " %6s", "-");
-  else fprintf(out, " %6.2f", v);
+  else put_fixed(out, 6, 2, v);
 }
 
 /* Columns a UTF-8 text takes on a terminal: its characters (the bytes that
