@@ -97,13 +97,30 @@ START_TEST(test_fit_roundtrip)
   sp_status s = sp_replay(path_in("fits/dm.json"), NULL, &rep, &err);
   ck_assert_msg(s == SP_OK, "replay: %s", err.msg);
   ck_assert_int_eq(rep.kind, SP_REPLAY_FIT);
-  ck_assert_uint_eq(rep.ninputs, 1);
-  ck_assert_uint_eq(rep.ndiffs_total, 0);
-  ck_assert_int_eq(rep.build_differs, 0);
-  ck_assert(rep.tolerance == 0);
-  /* Every candidate's numbers are compared: more than a hundred values. */
-  ck_assert_uint_gt(rep.compared, 100);
+  /* The report is read into locals and cleared first, so that a failed
+   * check leaks nothing (valgrind runs the suites without fork). */
+  const size_t ninputs = rep.ninputs, ndiffs = rep.ndiffs_total, compared = rep.compared;
+  const int differs = rep.build_differs;
+  const double tol = rep.tolerance;
+  char note[sizeof rep.build_note];
+  snprintf(note, sizeof note, "%s", rep.build_note);
   sp_replay_report_clear(&rep);
+  ck_assert_uint_eq(ninputs, 1);
+  ck_assert_uint_eq(ndiffs, 0);
+  /* The record was made by the command-line tool on this machine, so the
+   * build is the same.  The one fact that may differ is the processor's
+   * features when this suite runs under valgrind, whose virtual processor
+   * reports fewer (AVX-512, say): the replay rightly names that and
+   * compares within its tolerance. */
+  if (differs) {
+    ck_assert_msg(strncmp(note, "processor features ", 19) == 0 && !strchr(note, ';'),
+                  "build differs: %s", note);
+    ck_assert(tol > 0);
+  } else {
+    ck_assert(tol == 0);
+  }
+  /* Every candidate's numbers are compared: more than a hundred values. */
+  ck_assert_uint_gt(compared, 100);
 }
 END_TEST
 

@@ -13,6 +13,7 @@
 #include <gsl/gsl_cdf.h>
 
 #include "scatterprop/plot.h"
+#include "scatterprop/provenance.h"
 #include "scatterprop/reportgen.h"
 #include "sp_test.h"
 
@@ -284,11 +285,20 @@ END_TEST
 
 START_TEST(test_repeated_run_must_match)
 {
-  /* One recorded figure moved by one unit in the last place. */
+  /* One recorded figure moved by one unit in the last place.  Under
+   * valgrind, whose virtual processor reports other features than the one
+   * the record was made on, the repeated run is compared within the
+   * replay tolerance (1e-9 relative) as for another build: there the
+   * figure is moved by 1e-6 relative instead. */
   json_t *r = load_record();
+  sp_provenance pv;
+  sp_provenance_get(&pv);
+  const char *cpu = json_string_value(
+      json_object_get(json_object_get(json_object_get(r, "provenance"), "os"), "cpu_features"));
+  const int same_cpu = cpu && strcmp(cpu, pv.cpu_features) == 0;
   json_t *y = json_array_get(json_object_get(json_object_get(r, "results"), "outputs"), 0);
   double sd = json_number_value(json_object_get(y, "sd"));
-  json_object_set_new(y, "sd", json_real(nextafter(sd, INFINITY)));
+  json_object_set_new(y, "sd", json_real(same_cpu ? nextafter(sd, INFINITY) : sd * (1 + 1e-6)));
   save_record(r);
   sp_reportgen_options o;
   options(&o, path_in("r.html"));
