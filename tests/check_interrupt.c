@@ -117,20 +117,23 @@ static void only_inputs_left(void)
 
 /* Ctrl-C during a long propagate: it stops at the next block (one block
  * of 4096 samples is about 10 ms here; 3 s allows for a loaded machine and
- * for freeing the sample arrays), writes nothing and exits 130. */
-static void interrupt_propagate(const char *threads)
+ * for freeing the sample arrays), writes nothing and exits 130.  SIGTERM
+ * (kill, a batch system's time limit) does the same and exits 143
+ * (128 + the signal, as a shell reports a process the signal ended:
+ * common practice, no source). */
+static void interrupt_propagate_with(const char *threads, int sig)
 {
   const char *argv[] = {"scatterprop", "propagate", "slow.spm", "--samples", "10000000",
                         "--threads",   threads,     "--out",    "run",       "--archive",
                         "A",           "--plots",   "P",        NULL};
   pid_t pid = start(argv, 0);
   pause_s(1.0);
-  ck_assert_int_eq(kill(pid, SIGINT), 0);
+  ck_assert_int_eq(kill(pid, sig), 0);
   double took;
   int st = finish(pid, 20, &took);
   ck_assert_msg(WIFEXITED(st), "propagate did not exit (signal %d)",
                 WIFSIGNALED(st) ? WTERMSIG(st) : 0);
-  ck_assert_int_eq(WEXITSTATUS(st), 130);
+  ck_assert_int_eq(WEXITSTATUS(st), 128 + sig);
   ck_assert_msg(took < 3.0, "stopped %.2f s after Ctrl-C", took);
   ASSERT_HAS(err_text, "interrupted after ");
   ASSERT_HAS(err_text, "nothing was written");
@@ -140,13 +143,38 @@ static void interrupt_propagate(const char *threads)
 
 START_TEST(test_propagate_one_thread)
 {
-  interrupt_propagate("1");
+  interrupt_propagate_with("1", SIGINT);
 }
 END_TEST
 
 START_TEST(test_propagate_two_threads)
 {
-  interrupt_propagate("2");
+  interrupt_propagate_with("2", SIGINT);
+}
+END_TEST
+
+START_TEST(test_propagate_terminated)
+{
+  interrupt_propagate_with("2", SIGTERM);
+}
+END_TEST
+
+/* SIGTERM before the run (while the model's fits are read, say) ends the
+ * program at once, exit 143, nothing written. */
+START_TEST(test_fit_terminated)
+{
+  const char *argv[] = {"scatterprop", "fit",       "coil_dm.csv", "--column",
+                        "Dm",          "--pvalues", "bootstrap",   "--bootstrap",
+                        "1000000",     "--out",     "f.json",      NULL};
+  pid_t pid = start(argv, 0);
+  pause_s(1.0);
+  ck_assert_int_eq(kill(pid, SIGTERM), 0);
+  double took;
+  int st = finish(pid, 20, &took);
+  ck_assert(WIFEXITED(st));
+  ck_assert_int_eq(WEXITSTATUS(st), 143);
+  ASSERT_HAS(err_text, "interrupted; nothing was written");
+  only_inputs_left();
 }
 END_TEST
 
@@ -300,6 +328,8 @@ static Suite *suite(void)
   tcase_set_timeout(t, 120);
   tcase_add_test(t, test_propagate_one_thread);
   tcase_add_test(t, test_propagate_two_threads);
+  tcase_add_test(t, test_propagate_terminated);
+  tcase_add_test(t, test_fit_terminated);
   tcase_add_test(t, test_fit_interrupted);
   tcase_add_test(t, test_ignored_sigint_kept);
   tcase_add_test(t, test_refused_before_the_run);

@@ -99,29 +99,36 @@ void cli_print_caution(FILE *out)
 
 static volatile sig_atomic_t sigint_held, sigint_seen;
 
+/* SIGINT (Ctrl-C), SIGTERM (kill, a batch system's time limit) and SIGHUP
+ * (the terminal closed) end a command the same way; sigint_seen holds the
+ * signal's number. */
 static void on_sigint(int sig)
 {
-  (void)sig;
-  sigint_seen = 1;
+  sigint_seen = sig;
   if (sigint_held) return;
   /* Only async-signal-safe calls here: write(2) and _exit(2). */
   static const char msg[] = "\nscatterprop: interrupted; nothing was written\n";
   ssize_t w = write(2, msg, sizeof msg - 1);
   (void)w;
-  _exit(CLI_INTERRUPTED);
+  _exit(128 + sig);
 }
 
 void cli_sigint_install(void)
 {
-  /* A program started with SIGINT ignored (nohup, a background job of a
-   * non-interactive shell) keeps ignoring it, as the shell intended. */
-  struct sigaction old;
-  if (sigaction(SIGINT, NULL, &old) == 0 && old.sa_handler == SIG_IGN) return;
-  struct sigaction sa;
-  memset(&sa, 0, sizeof sa);
-  sa.sa_handler = on_sigint;
-  sigemptyset(&sa.sa_mask);
-  sigaction(SIGINT, &sa, NULL);
+  static const int sigs[] = {SIGINT, SIGTERM, SIGHUP};
+  for (size_t i = 0; i < sizeof sigs / sizeof sigs[0]; i++) {
+    /* A program started with a signal ignored (nohup, a background job of
+     * a non-interactive shell) keeps ignoring it, as the shell intended. */
+    struct sigaction old;
+    if (sigaction(sigs[i], NULL, &old) == 0 && old.sa_handler == SIG_IGN) continue;
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = on_sigint;
+    sigemptyset(&sa.sa_mask);
+    /* one signal at a time: a second one while the first is noted waits */
+    for (size_t j = 0; j < sizeof sigs / sizeof sigs[0]; j++) sigaddset(&sa.sa_mask, sigs[j]);
+    sigaction(sigs[i], &sa, NULL);
+  }
 }
 
 void cli_sigint_hold(int hold)
@@ -133,6 +140,11 @@ void cli_sigint_hold(int hold)
 int cli_interrupted(void)
 {
   return sigint_seen != 0;
+}
+
+int cli_interrupt_code(void)
+{
+  return sigint_seen ? 128 + sigint_seen : CLI_INTERRUPTED;
 }
 
 /* ---- all-or-nothing outputs -------------------------------------------------- */

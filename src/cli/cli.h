@@ -44,8 +44,9 @@ int cli_parse_u64(const char *command, const char *opt, const char *text,
                   unsigned long long *out, int *rc);
 
 /* ---- Ctrl-C --------------------------------------------------------------
- * cli_sigint_install() makes SIGINT end the program at once with exit code
- * CLI_INTERRUPTED and the message "interrupted; nothing was written": for
+ * cli_sigint_install() makes SIGINT (and SIGTERM, SIGHUP) end the program
+ * at once with exit code 128 + the signal (CLI_INTERRUPTED, 130, for
+ * Ctrl-C; 143 for SIGTERM) and the message "interrupted; nothing was written": for
  * the parts of a command that write nothing.  While held
  * (cli_sigint_hold(1)) an interrupt is only noted, for cli_interrupted()
  * to report: around a run that polls it between blocks, and around the
@@ -55,6 +56,8 @@ enum { CLI_INTERRUPTED = 130 };
 void cli_sigint_install(void);
 void cli_sigint_hold(int hold);
 int cli_interrupted(void);
+/* The exit code of the interrupt noted: 128 + its signal. */
+int cli_interrupt_code(void);
 
 /* ---- all-or-nothing outputs ------------------------------------------------
  * The files and folders a command has made, so that a failure (or an

@@ -599,7 +599,7 @@ int cli_fit_run(int argc, char **argv)
   if (rc == CLI_OK && cli_interrupted()) {
     fprintf(stderr, "scatterprop: interrupted while the outputs were being written; they "
                     "were completed first\n");
-    rc = CLI_INTERRUPTED;
+    rc = cli_interrupt_code();
   }
   goto done;
 undo : {
@@ -611,7 +611,7 @@ undo : {
             removed, removed == 1 ? "" : "s", removed == 1 ? "" : "s");
   if (cli_interrupted()) {
     fprintf(stderr, "scatterprop: interrupted while writing the outputs\n");
-    rc = CLI_INTERRUPTED;
+    rc = cli_interrupt_code();
   }
 }
 done:

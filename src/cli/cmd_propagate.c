@@ -463,7 +463,7 @@ int cli_propagate_run(int argc, char **argv)
   } else if (cli_interrupted() || sp_run_result(run)->status == SP_ENGINE_CANCELLED) {
     fprintf(stderr, "scatterprop: interrupted after %llu samples; nothing was written\n",
             (unsigned long long)sp_run_result(run)->samples);
-    rc = CLI_INTERRUPTED;
+    rc = cli_interrupt_code();
   }
   if (rc != CLI_OK) {
     sp_run_free(run);
@@ -526,7 +526,7 @@ int cli_propagate_run(int argc, char **argv)
               removed, removed == 1 ? "" : "s", removed == 1 ? "" : "s");
     if (cli_interrupted()) {
       fprintf(stderr, "scatterprop: interrupted while writing the outputs\n");
-      rc = CLI_INTERRUPTED;
+      rc = cli_interrupt_code();
     }
   }
   cli_created_free(&made);
@@ -570,7 +570,7 @@ int cli_propagate_run(int argc, char **argv)
   if (rc == CLI_OK && cli_interrupted()) {
     fprintf(stderr, "scatterprop: interrupted while the outputs were being written; they "
                     "were completed first\n");
-    rc = CLI_INTERRUPTED;
+    rc = cli_interrupt_code();
   }
   sp_runplot_set_clear(&plots);
   free(record);

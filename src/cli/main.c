@@ -37,7 +37,7 @@ static void main_help(FILE *out)
   fprintf(out, "\n"
                "Run 'scatterprop COMMAND --help' for a command's options.\n"
                "Exit codes: 0 ok, 1 differs, 2 usage, 3 bad input data, 4 bad model,\n"
-               "5 numerical failure, 6 I/O error, 130 interrupted (Ctrl-C).\n"
+               "5 numerical failure, 6 I/O error, 130 interrupted (Ctrl-C; 143 for SIGTERM).\n"
                "\n");
   cli_print_caution(out);
 }
