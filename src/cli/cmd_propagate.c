@@ -563,7 +563,8 @@ int cli_propagate_run(int argc, char **argv)
       if (plotdir) cli_runplot_print(stdout, &plots, plotdir);
       if (archive) printf("archive written to %s/\n", archive);
       printf("\nValues are shown to the Monte Carlo resolution (two digits of the standard\n"
-             "error of the mean). Percentiles: Hyndman & Fan definition 7 on all samples.\n\n");
+             "error of the mean). Percentiles: Hyndman & Fan definition 7 on every finite\n"
+             "sample.\n\n");
       cli_print_caution(stdout);
     }
   }
