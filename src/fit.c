@@ -523,15 +523,21 @@ void sp_fit_rank(sp_fit_result *r)
     if (!c->rejected) nfree++;
     if (!c->rejected && c->converged) nfree_conv++;
   }
-  /* AICc needs n > k + 1.  When no fitted candidate has it (n = 3 with two
-   * parameters), every AICc would be an equal infinity and the ranking the
-   * order of the list: rank by AIC then, and say so. */
+  /* AICc needs n > k + 1.  When none of the candidates the choice is made
+   * from has it (n = 3 with two parameters, while a one-parameter family
+   * that has it is rejected), their AICc would be an equal infinity and the
+   * choice the order of the list: rank by AIC then, and say so. */
   sp_fit_select sel = o->select;
   int aicc_undefined = 0;
   if (sel == SP_FIT_SELECT_AICC && nok > 0) {
     aicc_undefined = 1;
-    for (size_t i = 0; i < r->ncand; i++)
-      if (r->cand[i].status == SP_FIT_OK && isfinite(r->cand[i].aicc)) aicc_undefined = 0;
+    for (size_t i = 0; i < r->ncand; i++) {
+      const sp_fit_candidate *c = &r->cand[i];
+      if (c->status != SP_FIT_OK || (nfree > 0 && c->rejected) ||
+          (nfree_conv > 0 && !c->converged))
+        continue;
+      if (isfinite(c->aicc)) aicc_undefined = 0;
+    }
     if (aicc_undefined) sel = SP_FIT_SELECT_AIC;
   }
   /* Rank by the criterion; ties keep candidate order. */
@@ -622,7 +628,9 @@ void sp_fit_rank(sp_fit_result *r)
   if (aicc_undefined) {
     size_t len = strlen(r->reason);
     snprintf(r->reason + len, sizeof r->reason - len,
-             " (AICc is undefined for n = %zu: n <= k + 1 for every candidate)", r->n);
+             " (AICc is undefined for n = %zu: n <= k + 1 for every candidate it could "
+             "choose from)",
+             r->n);
   }
 }
 

@@ -540,12 +540,22 @@ START_TEST(test_rank_aicc_undefined)
   ck_assert_int_eq(c[0].rank, 2);
   ck_assert_str_eq(r.reason, "tnorm_cf: lowest AIC (12.0) of the 2 candidates not rejected by "
                              "A² at 5% (AICc is undefined for n = 3: n <= k + 1 for every "
-                             "candidate)");
+                             "candidate it could choose from)");
   /* One candidate with a finite AICc: AICc ranks, the undefined one last. */
   c[0].aicc = 30.0;
   sp_fit_rank(&r);
   ck_assert_int_eq(r.chosen, 0);
   ck_assert(strstr(r.reason, "lowest AICc (30.0)") != NULL);
+  /* ... unless that one is rejected: the choice is among the others, none
+   * of which has AICc, so AIC ranks again (the demo-like case of n = 3
+   * with a one-parameter family rejected by A²; "lowest AICc (inf)"
+   * before). */
+  c[0].gof[SP_FIT_GOF_A2].p = 0.01;
+  sp_fit_rank(&r);
+  ck_assert_int_eq(r.chosen, 1);
+  ck_assert_msg(strstr(r.reason, "lowest AIC (12.0) of the 1 candidate not rejected") != NULL,
+                "%s", r.reason);
+  ck_assert(strstr(r.reason, "AICc is undefined for n = 3") != NULL);
 }
 END_TEST
 
@@ -764,6 +774,44 @@ START_TEST(test_offset_data)
   ASSERT_REL(a->se[1], b->se[1], 1e-3);
   sp_fit_result_clear(&rx);
   sp_fit_result_clear(&ry);
+}
+END_TEST
+
+/* Below n = 5 the published approximations for estimated parameters are
+ * not used (src/fit_gof.c gives the simulation that showed the Table 4.9
+ * formula never rejecting at 5% for n = 3); the bootstrap gives the
+ * p-values, and with approximations only none is given, with the reason. */
+START_TEST(test_small_n_no_tables)
+{
+  const double x[5] = {1.50, 1.62, 1.70, 1.58, 1.66};
+  const char *fams[2] = {"normal", "exponential"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 2;
+  o.bootstrap_B = 200;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  for (size_t n = 3; n <= 5; n++) {
+    ck_assert_msg(sp_fit_run(x, n, &o, &r, &e) == SP_OK, "%s", e.msg);
+    for (size_t i = 0; i < r.ncand; i++) {
+      const sp_fit_gof *g = &r.cand[i].gof[SP_FIT_GOF_A2];
+      ck_assert_msg(isfinite(g->p), "n = %zu %s: no A² p", n, r.cand[i].family->name);
+      if (n < SP_FIT_APPROX_MIN_N)
+        ck_assert_msg(strstr(g->method, "bootstrap") != NULL, "n = %zu: %s", n, g->method);
+      else
+        ck_assert_msg(strstr(g->method, "bootstrap") == NULL, "n = %zu: %s", n, g->method);
+    }
+    sp_fit_result_clear(&r);
+  }
+  o.pvalue = SP_FIT_PVALUE_APPROX;
+  ck_assert_msg(sp_fit_run(x, 4, &o, &r, &e) == SP_OK, "%s", e.msg);
+  ck_assert(!isfinite(r.cand[0].gof[SP_FIT_GOF_A2].p));
+  ck_assert_str_eq(r.cand[0].gof[SP_FIT_GOF_A2].method,
+                   "no published approximation below n = 5 (--pvalues auto or bootstrap gives "
+                   "one)");
+  sp_fit_result_clear(&r);
 }
 END_TEST
 
@@ -1236,6 +1284,7 @@ static Suite *fit_suite(void)
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);
   tcase_add_test(tc, test_rank_aicc_undefined);
+  tcase_add_test(tc, test_small_n_no_tables);
   tcase_add_test(tc, test_rank_converged);
   tcase_add_test(tc, test_option_parsing);
   suite_add_tcase(s, tc);

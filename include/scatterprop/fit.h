@@ -54,6 +54,11 @@ typedef enum {
 } sp_fit_select;
 
 /* Where p-values come from. */
+/* The published p-value approximations for estimated parameters are used
+ * from this sample size on; below it only the bootstrap gives p-values
+ * (src/fit_gof.c says why). */
+#define SP_FIT_APPROX_MIN_N 5
+
 /* In SP_FIT_PVALUE_AUTO the bootstrap runs only while B * n is at most
  * this many sampled values (2e8: about 40 s per candidate with a family
  * solver at the measured ~0.2 us per value and refit, tests/bench; the
