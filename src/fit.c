@@ -943,11 +943,13 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
   out->pooled.chosen = -1;
   const sp_column *c = sp_table_column(t, column);
   if (!c) {
-    sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, column);
+    sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, 0, "no column named '%s' in the header",
+               column);
     return columns_hint(t, SP_COLUMN_NUMERIC, "numeric", err);
   }
   if (c->kind != SP_COLUMN_NUMERIC) {
-    sp_fail(err, SP_EUSAGE, "%s: column '%s' is text, not numbers", t->path, column);
+    sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, (long)c->index + 1,
+               "column '%s' is text, not numbers", column);
     return columns_hint(t, SP_COLUMN_NUMERIC, "numeric", err);
   }
   for (size_t i = 0; i < c->n; i++)
@@ -962,11 +964,13 @@ sp_status sp_fit_table(const sp_table *t, const char *column, const char *by,
   if (by) {
     const sp_column *g = sp_table_column(t, by);
     if (!g) {
-      sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, by);
+      sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, 0, "no column named '%s' in the header",
+                 by);
       return columns_hint(t, SP_COLUMN_TEXT, "text (lot)", err);
     }
     if (g->kind != SP_COLUMN_TEXT) {
-      sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path, by);
+      sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, (long)g->index + 1,
+                 "the lot column '%s' must be text", by);
       return columns_hint(t, SP_COLUMN_TEXT, "text (lot)", err);
     }
     return with_column(t, column,

@@ -346,7 +346,8 @@ static sp_status process_header(reader *r)
           size_t l = strlen(list);
           snprintf(list + l, sizeof list - l, "%s'%s'", i ? ", " : "", all[i].name);
         }
-        s = sp_fail_at(r->err, SP_EDATA, r->name, 0, 0, "no column named '%s'", want);
+        s = sp_fail_at(r->err, SP_EDATA, r->name, r->record_line, 0,
+                       "no column named '%s' in the header", want);
         sp_error_hint(r->err, "the columns are: %s", list);
         r->status = s;
       } else if (r->cs[found].keep < 0) {

@@ -86,9 +86,10 @@ START_TEST(test_demo_summary_by_lot)
   ASSERT_HAS(out_text, "CAUTION");
   /* The lot column is text: grouping by a numeric column is refused. */
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --by wire_d", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "holds numbers; --by needs a text column");
+  /* at its header cell: line 5 (after four '#' lines), cell 3 */
+  ASSERT_HAS(err_text, "wire_d.csv:5:3: column 'wire_d [mm]' holds numbers; --by needs a text column");
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --column diameter", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "no column named 'diameter'");
+  ASSERT_HAS(err_text, "wire_d.csv:5: no column named 'diameter'");
   ASSERT_HAS(err_text, "the columns are: 'part', 'lot', 'wire_d'");
 }
 END_TEST
@@ -106,7 +107,7 @@ END_TEST
 START_TEST(test_summary_of_text_column_refused)
 {
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --column lot", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "column 'lot' holds text, not numbers");
+  ASSERT_HAS(err_text, "wire_d.csv:5:2: column 'lot' holds text, not numbers");
 }
 END_TEST
 
