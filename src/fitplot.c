@@ -429,8 +429,10 @@ sp_status sp_fitplot_plan_read(const char *path, sp_fitplot_plan *plan, sp_recor
 {
   memset(plan, 0, sizeof *plan);
   if (rec) memset(rec, 0, sizeof *rec);
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return sp_fail(err, SP_EIO, "cannot open fit record %s: %s", path, strerror(errno));
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *fp = sp_file_open_input(path, "fit record", RECORD_MAX, err ? err : &local);
+  if (!fp) return err ? err->code : local.code;
   size_t cap = 1 << 16, len = 0;
   char *buf = malloc(cap);
   sp_status st = SP_OK;

@@ -101,7 +101,7 @@ static int key_is(cursor *c, const char *want, size_t n, int *ok)
   size_t k = 0;
   int same = 1;
   while (c->p < c->end && *c->p != '"') {
-    char out[4];
+    char out[4] = {0};
     size_t m = 1;
     if (*c->p == '\\') {
       adv(c);

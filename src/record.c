@@ -840,8 +840,12 @@ sp_status sp_record_fit_parse(const char *name, const char *text, size_t len,
 sp_status sp_record_fit_read(const char *path, sp_record_fit *out, sp_error *err)
 {
   memset(out, 0, sizeof *out);
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return sp_fail(err, SP_EIO, "cannot open fit record %s: %s", path, strerror(errno));
+  /* Records are a few kilobytes; 256 MiB is far beyond any real one.  The
+   * size is checked before a byte is read, and a pipe or device refused. */
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *fp = sp_file_open_input(path, "fit record", (uint64_t)256 << 20, err ? err : &local);
+  if (!fp) return err ? err->code : local.code;
   size_t cap = 1 << 16, len = 0;
   char *buf = malloc(cap);
   if (!buf) {

@@ -45,11 +45,8 @@ void sp_replay_report_clear(sp_replay_report *rep)
 
 char *sp_replay_read_file(const char *path, size_t *len, sp_error *err)
 {
-  FILE *fp = fopen(path, "rb");
-  if (!fp) {
-    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
-    return NULL;
-  }
+  FILE *fp = sp_file_open_input(path, "record", SP_REPLAY_MAX_FILE, err);
+  if (!fp) return NULL;
   size_t cap = 1 << 16, n = 0;
   char *buf = malloc(cap);
   for (;;) {

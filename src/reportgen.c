@@ -674,6 +674,22 @@ static sp_status check_fit_record(checker *c, const json_t *root)
 
 static int readable(const char *path) { return access(path, R_OK) == 0; }
 
+/* The JSON of a record file, opened by sp_file_open_input (a regular file
+ * of at most 256 MiB, so a pipe cannot block and a device cannot fill
+ * memory).  NULL with *opened 0 and err set when it cannot be opened; NULL
+ * with *opened 1 and je set when it is not JSON. */
+static json_t *load_record(const char *path, const char *what, int *opened, json_error_t *je,
+                           sp_error *err)
+{
+  *opened = 0;
+  FILE *fp = sp_file_open_input(path, what, (uint64_t)256 << 20, err);
+  if (!fp) return NULL;
+  *opened = 1;
+  json_t *root = json_loadf(fp, JSON_REJECT_DUPLICATES, je);
+  fclose(fp);
+  return root;
+}
+
 /* The folder part of path ("." when it has none), into buf. */
 static void dir_of(const char *path, char *buf, size_t n)
 {
@@ -1826,7 +1842,9 @@ static sp_status runsrc_load(runsrc *s, const char *run_record, sp_error *err)
   if (!readable(run_record))
     return sp_fail(err, SP_EIO, "run record %s cannot be read: %s", run_record, strerror(errno));
   json_error_t je;
-  s->root = json_load_file(run_record, 0, &je);
+  int opened;
+  s->root = load_record(run_record, "run record", &opened, &je, err);
+  if (!s->root && !opened) return err ? err->code : SP_EIO;
   if (!s->root) {
     sp_fail_at(err, SP_EDATA, run_record, je.line, je.column, "run record: not JSON: %s",
                je.text);
@@ -2067,7 +2085,9 @@ sp_status sp_reportgen_record_kind(const char *path, sp_reportgen_kind *kind, sp
   if (!readable(path))
     return sp_fail(err, SP_EIO, "record %s cannot be read: %s", path, strerror(errno));
   json_error_t je;
-  json_t *root = json_load_file(path, 0, &je);
+  int opened;
+  json_t *root = load_record(path, "record", &opened, &je, err);
+  if (!root && !opened) return err ? err->code : SP_EIO;
   const json_t *fmt = json_is_object(root) ? json_object_get(root, "format") : NULL;
   if (json_is_string(fmt) && strcmp(json_string_value(fmt), SP_RECORD_FIT_FORMAT) == 0)
     *kind = SP_REPORTGEN_FIT;

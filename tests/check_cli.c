@@ -2,6 +2,7 @@
  * with positions, and what a user reads.  The commands run through
  * /bin/sh in a temporary folder, with their output captured there. */
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "sp_test.h"
@@ -51,6 +52,30 @@ START_TEST(test_missing_file_is_io_error)
 {
   ck_assert_int_eq(cli("summary /nonexistent/wire.csv"), 6);
   ASSERT_HAS(err_text, "scatterprop: error: /nonexistent/wire.csv: cannot open");
+}
+END_TEST
+
+/* A FIFO without a writer would block open(2), and a device such as
+ * /dev/zero never ends: every reader refuses anything but a regular file
+ * before reading a byte, at once (the 'timeout 20' turns a hang into exit
+ * 124, which fails the test), as an I/O error with a hint. */
+START_TEST(test_fifo_and_device_refused)
+{
+  ck_assert_int_eq(mkfifo(path_in("pipe"), 0600), 0);
+  static const char *const cmds[] = {
+      "summary pipe", "fit pipe --column d --out f.json", "propagate pipe --samples 100",
+      "plot pipe --out charts", "replay pipe", "report pipe --out r.html",
+      "propagate /dev/zero --samples 100", "summary /dev/zero"};
+  for (size_t i = 0; i < sizeof cmds / sizeof cmds[0]; i++) {
+    int rc = sh("timeout 20 " SP " %s", cmds[i]);
+    ck_assert_msg(rc == 6, "'%s': exit %d, want 6: %s", cmds[i], rc, err_text);
+    ASSERT_HAS(err_text, "is not a regular file (a pipe, a device or a socket)");
+    ASSERT_HAS(err_text, "hint: copy the ");
+  }
+  /* nothing written beside the pipe */
+  ck_assert_int_ne(access(path_in("f.json"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("r.html"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("charts"), F_OK), 0);
 }
 END_TEST
 
@@ -189,6 +214,7 @@ static Suite *cli_suite(void)
   tcase_add_checked_fixture(tc, setup, teardown);
   tcase_add_test(tc, test_help_and_caution);
   tcase_add_test(tc, test_usage_errors);
+  tcase_add_test(tc, test_fifo_and_device_refused);
   tcase_add_test(tc, test_missing_file_is_io_error);
   tcase_add_test(tc, test_bad_number_position);
   tcase_add_test(tc, test_demo_summary_by_lot);
