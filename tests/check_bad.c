@@ -423,8 +423,9 @@ START_TEST(test_case)
     ck_assert_msg(strstr(etext, "scatterprop: error: ") != NULL,
                   "case %s (MANIFEST:%ld): no 'scatterprop: error: ' line:\n%.2000s", c->name,
                   c->line, etext);
-  /* A failed summary of a CSV file also says what to do about it. */
-  if (c->exit_code != 0 && strncmp(c->run, "summary ", 8) == 0)
+  /* A failed summary of a CSV file, and every usage error, also says
+   * what to do about it. */
+  if (c->exit_code != 0 && (strncmp(c->run, "summary ", 8) == 0 || c->exit_code == 2))
     ck_assert_msg(strstr(etext, "\n  hint: ") != NULL, "case %s (MANIFEST:%ld): no hint:\n%.2000s",
                   c->name, c->line, etext);
   for (size_t k = 0; k < c->nout; k++)
