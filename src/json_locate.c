@@ -3,10 +3,14 @@
  * it may be handed a file that changed since it was parsed. */
 #include "json_locate.h"
 
+#include <stdint.h>
+
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+
+#include "scatterprop/core.h"
 
 typedef struct {
   const char *p, *end;
@@ -225,12 +229,14 @@ int sp_json_locate(const char *text, size_t len, const char *path, long *line, l
 
 int sp_json_locate_file(const char *file, const char *path, long *line, long *col)
 {
-  FILE *fp = fopen(file, "rb");
+  /* Opened as every input is (a regular file, size-checked, never a FIFO
+   * that would block): the file may have changed since it was parsed. */
+  sp_error e;
+  sp_error_clear(&e);
+  FILE *fp = sp_file_open_input(file, "record", (uint64_t)256 << 20, &e);
   if (!fp) return 0;
   struct stat st;
-  const size_t max = (size_t)256 << 20;
-  if (fstat(fileno(fp), &st) != 0 || !S_ISREG(st.st_mode) || st.st_size < 0 ||
-      (unsigned long long)st.st_size > max) {
+  if (fstat(fileno(fp), &st) != 0 || st.st_size < 0) {
     fclose(fp);
     return 0;
   }

@@ -45,7 +45,7 @@ void sp_replay_report_clear(sp_replay_report *rep)
 
 char *sp_replay_read_file(const char *path, size_t *len, sp_error *err)
 {
-  FILE *fp = sp_file_open_input(path, "record", SP_REPLAY_MAX_FILE, err);
+  FILE *fp = sp_file_open_input(path, "file", SP_REPLAY_MAX_FILE, err);
   if (!fp) return NULL;
   size_t cap = 1 << 16, n = 0;
   char *buf = malloc(cap);
