@@ -58,7 +58,8 @@ END_TEST
 /* A FIFO without a writer would block open(2), and a device such as
  * /dev/zero never ends: every reader refuses anything but a regular file
  * before reading a byte, at once (the 'timeout 20' turns a hang into exit
- * 124, which fails the test), as an I/O error with a hint. */
+ * 124, which fails the test), as an I/O error with a hint; and a file
+ * beyond a reader's size limit is refused from its size. */
 START_TEST(test_fifo_and_device_refused)
 {
   ck_assert_int_eq(mkfifo(path_in("pipe"), 0600), 0);
@@ -72,6 +73,18 @@ START_TEST(test_fifo_and_device_refused)
     ASSERT_HAS(err_text, "is not a regular file (a pipe, a device or a socket)");
     ASSERT_HAS(err_text, "hint: copy the ");
   }
+  /* Sparse files larger than a reader's limit are refused from their size
+   * alone, before a byte is read (truncate(1) makes them in no time, and
+   * reading 300 MiB of zeros would take seconds). */
+  ck_assert_int_eq(sh("truncate -s 300M big.json && truncate -s 9M big.spm"), 0);
+  ck_assert_int_eq(sh("timeout 20 " SP " plot big.json --out charts"), 3);
+  ASSERT_HAS(err_text, "big.json: the fit record is larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " replay big.json"), 3);
+  ASSERT_HAS(err_text, "big.json: the file is larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " report big.json --out r.html"), 3);
+  ASSERT_HAS(err_text, "larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " propagate big.spm --samples 100"), 3);
+  ASSERT_HAS(err_text, "big.spm: the model is larger than 8388608 bytes (it has 9437184)");
   /* nothing written beside the pipe */
   ck_assert_int_ne(access(path_in("f.json"), F_OK), 0);
   ck_assert_int_ne(access(path_in("r.html"), F_OK), 0);
