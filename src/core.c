@@ -437,11 +437,66 @@ void sp_sha256_buffer(const void *data, size_t n, char hex[SP_SHA256_HEX_LEN])
   hex_digest(d, hex);
 }
 
+FILE *sp_file_open_input(const char *path, const char *what, uint64_t max_bytes,
+                         sp_error *err)
+{
+  /* O_NONBLOCK: opening a FIFO for reading would otherwise wait for a
+   * writer.  It is cleared again before the file is read. */
+  int fd = open(path, O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+  if (fd < 0) {
+    int e = errno;
+    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(e));
+    if (e == ENOENT)
+      sp_error_hint(err, "check the path (it is relative to the current folder)");
+    else if (e == EACCES)
+      sp_error_hint(err, "the file's permissions do not let you read it");
+    return NULL;
+  }
+  struct stat st;
+  if (fstat(fd, &st) != 0) {
+    int e = errno;
+    close(fd);
+    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(e));
+    return NULL;
+  }
+  if (S_ISDIR(st.st_mode)) {
+    close(fd);
+    sp_fail(err, SP_EIO, "%s: is a folder, not a %s", path, what);
+    sp_error_hint(err, "give the path of a %s", what);
+    return NULL;
+  }
+  if (!S_ISREG(st.st_mode)) {
+    close(fd);
+    sp_fail(err, SP_EIO, "%s: is not a regular file (a pipe, a device or a socket)", path);
+    sp_error_hint(err, "copy the %s to a regular file first: a pipe or a device cannot be "
+                       "size-checked, hashed for the records or read again by replay", what);
+    return NULL;
+  }
+  if (max_bytes > 0 && (uint64_t)st.st_size > max_bytes) {
+    close(fd);
+    sp_fail(err, SP_ELIMIT, "%s: the %s is larger than %llu bytes (it has %llu)", path, what,
+            (unsigned long long)max_bytes, (unsigned long long)st.st_size);
+    sp_error_hint(err, "docs/limits.md lists the limits; is this the file you meant?");
+    return NULL;
+  }
+  int fl = fcntl(fd, F_GETFL);
+  FILE *fp = fl < 0 || fcntl(fd, F_SETFL, fl & ~O_NONBLOCK) < 0 ? NULL : fdopen(fd, "rb");
+  if (!fp) {
+    int e = errno;
+    close(fd);
+    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(e));
+  }
+  return fp;
+}
+
 sp_status sp_sha256_file(const char *path, char hex[SP_SHA256_HEX_LEN],
                          uint64_t *size, sp_error *err)
 {
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
+  sp_error local;
+  sp_error_clear(&local);
+  sp_error *e0 = err ? err : &local;
+  FILE *fp = sp_file_open_input(path, "file", 0, e0);
+  if (!fp) return e0->code;
   SHA2_CTX ctx;
   SHA256Init(&ctx);
   unsigned char buf[1 << 16];

@@ -112,9 +112,12 @@ sp_status engine_options_check(const sp_engine_options *opt, size_t ninputs,
     return sp_fail(err, SP_EUSAGE, "the number of samples must be at least 1");
   /* 2^50 samples keep every byte count of the memory guard below 2^64 */
   const uint64_t most = UINT64_C(1) << 50;
-  if ((!adaptive && opt->samples > most) || (adaptive && opt->max_samples > most))
-    return sp_fail(err, SP_EUSAGE, "at most 2^50 samples per run, got %llu",
-                   (unsigned long long)(adaptive ? opt->max_samples : opt->samples));
+  if ((!adaptive && opt->samples > most) || (adaptive && opt->max_samples > most)) {
+    sp_fail(err, SP_EUSAGE, "at most 2^50 samples per run, got %llu",
+            (unsigned long long)(adaptive ? opt->max_samples : opt->samples));
+    return sp_error_hint(err, "2^50 is about 1.1e15; give fewer samples, or --tolerance to stop "
+                              "when the results have the digits asked for");
+  }
   if (opt->method == SP_ENGINE_SOBOL) {
     if (dim > SP_ENGINE_SOBOL_MAX_DIM)
       return sp_fail(err, SP_EUSAGE,

@@ -278,6 +278,27 @@ sp_status sp_fit_covariance(sp_fit_candidate *c, const double *x, size_t n,
       step[j] = a - th;
     }
   }
+  /* A variance is of the order of step^2 divided by the curvature of
+   * -logL in step units (between about 1 and n), so step^2 must lie inside
+   * the double range with a margin of 1/epsilon (2^52) at each end (the
+   * covariances are then bounded by the geometric means).  Data near 1e300
+   * or 1e-300 give parameters whose variances (1e600, 1e-600) no double
+   * holds: the covariance is then unavailable for that reason, said
+   * plainly, instead of an overflowed Hessian read as "not positive
+   * definite" or a variance underflowed to 0. */
+  if (isfinite(f0)) {
+    for (size_t i = 0; i < k; i++) {
+      double pr = step[i] * step[i];
+      if (pr > DBL_MIN / DBL_EPSILON && pr < DBL_MAX * DBL_EPSILON) continue;
+      snprintf(c->cov_note, sizeof c->cov_note,
+               "covariance unavailable: the variance of '%s', of the order of (%.1e)^2 at this "
+               "magnitude of the data (%.3g to %.3g), is outside the range of a double; "
+               "rescale the data (another unit) for standard errors",
+               fam->param_names[idx[i]], step[i], xmin, xmax);
+      free(sorted);
+      return SP_OK;
+    }
+  }
   double H[SP_FAMILY_MAX_PARAMS * SP_FAMILY_MAX_PARAMS];
   double tp[SP_FAMILY_MAX_PARAMS];
   int finite = isfinite(f0);

@@ -19,6 +19,8 @@
 
 #include <jansson.h>
 
+#include "json_locate.h"
+
 /* ---- small helpers ----------------------------------------------------- */
 
 /* Quoted messages in a note are cut at 290 bytes ("%.290s"), so the longest
@@ -191,6 +193,8 @@ sp_status sp_fitplot_plan_from_fit(const sp_fit_grouped *g, const char *column,
 
 typedef struct {
   const char *name;
+  const char *text; /* the record's text, where a bad field is looked up */
+  size_t len;
   sp_error *err;
 } rd;
 
@@ -203,6 +207,10 @@ static sp_status bad(const rd *r, const char *field, const char *fmt, ...)
   va_start(ap, fmt);
   vsnprintf(what, sizeof what, fmt, ap);
   va_end(ap);
+  long line = 0, col = 0;
+  if (sp_json_locate(r->text, r->len, field, &line, &col))
+    return sp_fail_at(r->err, SP_EDATA, r->name, line, col, "fit record: field '%s' %s", field,
+                      what);
   return sp_fail(r->err, SP_EDATA, "fit record %s: field '%s' %s", r->name, field, what);
 }
 
@@ -404,7 +412,7 @@ sp_status sp_fitplot_plan_parse(const char *name, const char *text, size_t len,
     sp_record_fit_clear(&R);
     return sp_fail(err, SP_ENOMEM, "fit record %s: out of memory", name);
   }
-  rd r = {name, err};
+  rd r = {name, text, len, err};
   st = read_plan(&r, root, &R, plan);
   json_decref(root);
   if (st) sp_fitplot_plan_clear(plan);
@@ -421,8 +429,10 @@ sp_status sp_fitplot_plan_read(const char *path, sp_fitplot_plan *plan, sp_recor
 {
   memset(plan, 0, sizeof *plan);
   if (rec) memset(rec, 0, sizeof *rec);
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return sp_fail(err, SP_EIO, "cannot open fit record %s: %s", path, strerror(errno));
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *fp = sp_file_open_input(path, "fit record", RECORD_MAX, err ? err : &local);
+  if (!fp) return err ? err->code : local.code;
   size_t cap = 1 << 16, len = 0;
   char *buf = malloc(cap);
   sp_status st = SP_OK;
@@ -614,18 +624,21 @@ static sp_status draw_charts(const sp_fitplot_plan *plan, const sp_table *t,
   if (!plan || !plan->column || !t || !opt || !opt->outdir || !*opt->outdir)
     return sp_fail(err, SP_EUSAGE, "fit charts: no plan, table or output folder given");
   const sp_column *col = sp_table_column(t, plan->column);
-  if (!col) return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, plan->column);
+  if (!col)
+    return sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, 0,
+                      "no column named '%s' in the header", plan->column);
   if (col->kind != SP_COLUMN_NUMERIC)
-    return sp_fail(err, SP_EUSAGE, "%s: column '%s' is text, not numbers", t->path,
-                   plan->column);
+    return sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, (long)col->index + 1,
+                      "column '%s' is text, not numbers", plan->column);
   const sp_column *lc = NULL;
   if (plan->group_column) {
     lc = sp_table_column(t, plan->group_column);
     if (!lc)
-      return sp_fail(err, SP_EUSAGE, "%s: no column named '%s'", t->path, plan->group_column);
+      return sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, 0,
+                        "no column named '%s' in the header", plan->group_column);
     if (lc->kind != SP_COLUMN_TEXT)
-      return sp_fail(err, SP_EUSAGE, "%s: the lot column '%s' must be text", t->path,
-                     plan->group_column);
+      return sp_fail_at(err, SP_EUSAGE, t->path, t->header_line, (long)lc->index + 1,
+                        "the lot column '%s' must be text", plan->group_column);
   }
   size_t nlots = lc ? plan->nlots : 0;
   size_t nsets = nlots + 1;

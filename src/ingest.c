@@ -213,6 +213,19 @@ static sp_status parse_header_cell(reader *r, size_t i, sp_column *c)
             (unsigned char)s[bad], bad + 1);
     return sp_error_hint(r->err, "%s", utf8_hint);
   }
+  /* U+FEFF inside a header cell (a second byte-order mark, left by a tool
+   * that joined two files): invisible, so '--column x' would not find the
+   * column 'x' that the header seems to hold. */
+  for (size_t k = 0; k + 2 < n; k++)
+    if ((unsigned char)s[k] == 0xEF && (unsigned char)s[k + 1] == 0xBB &&
+        (unsigned char)s[k + 2] == 0xBF) {
+      rd_fail(r, SP_EDATA, r->record_line, (long)i + 1,
+              "header cell %zu holds an invisible byte-order mark (U+FEFF) at byte %zu", i + 1,
+              k + 1);
+      return sp_error_hint(r->err, "the file has a second byte-order mark (two files joined?); "
+                                   "delete it with an editor that shows it, or export the file "
+                                   "again");
+    }
   c->header = dup_range(s, n);
   if (!c->header) return sp_fail(r->err, SP_ENOMEM, "out of memory");
   const char *open = memchr(s, '[', n);
@@ -346,7 +359,8 @@ static sp_status process_header(reader *r)
           size_t l = strlen(list);
           snprintf(list + l, sizeof list - l, "%s'%s'", i ? ", " : "", all[i].name);
         }
-        s = sp_fail_at(r->err, SP_EDATA, r->name, 0, 0, "no column named '%s'", want);
+        s = sp_fail_at(r->err, SP_EDATA, r->name, r->record_line, 0,
+                       "no column named '%s' in the header", want);
         sp_error_hint(r->err, "the columns are: %s", list);
         r->status = s;
       } else if (r->cs[found].keep < 0) {
@@ -955,22 +969,12 @@ sp_status sp_table_read(const char *path, const sp_ingest_options *opt, sp_table
                         sp_error *err)
 {
   *out = NULL;
-  FILE *fp = fopen(path, "rb");
-  if (!fp) {
-    int e = errno;
-    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(e));
-    if (e == ENOENT)
-      sp_error_hint(err, "check the path (it is relative to the current folder)");
-    else if (e == EACCES)
-      sp_error_hint(err, "the file's permissions do not let you read it");
-    return SP_EIO;
-  }
-  struct stat st;
-  if (fstat(fileno(fp), &st) == 0 && S_ISDIR(st.st_mode)) {
-    fclose(fp);
-    sp_fail(err, SP_EIO, "%s: is a folder, not a CSV file", path);
-    return sp_error_hint(err, "give the path of a CSV file");
-  }
+  /* A regular file only: the record keeps its hash and size, and replay
+   * reads it again (a FIFO would also block here without a writer). */
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *fp = sp_file_open_input(path, "CSV file", 0, err ? err : &local);
+  if (!fp) return err ? err->code : local.code;
   sp_status s = read_common(path, fp, NULL, 0, opt, out, err);
   fclose(fp);
   return s;

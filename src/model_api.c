@@ -7,6 +7,7 @@
  * byte positions, sorted into file order and only then turned into
  * diagnostics (column in characters, the source line or a window of it). */
 #include "model_internal.h"
+#include "utf8.h"
 
 #include <errno.h>
 #include <math.h>
@@ -335,6 +336,27 @@ sp_status sp_model_compile(const char *path_for_messages, const char *text,
     ctx_free(&c);
     return st;
   }
+  /* The text reaches messages, terminals and the run record's JSON: an
+   * ill-formed byte (a Latin-1 export) is refused at its line and column
+   * (in characters) before anything is parsed, and never printed back. */
+  size_t bad = sp_utf8_check(c.text, c.len);
+  if (bad < c.len) {
+    long line = 1, col = 1;
+    for (size_t i = 0; i < bad; i++) {
+      if (c.text[i] == '\n') {
+        line++;
+        col = 1;
+      } else if (((unsigned char)c.text[i] & 0xC0) != 0x80) {
+        col++;
+      }
+    }
+    unsigned byte = (unsigned char)c.text[bad];
+    ctx_free(&c);
+    sp_fail_at(err, SP_EMODEL, file, line, col, "the model is not valid UTF-8 (byte 0x%02X)",
+               byte);
+    return sp_error_hint(err, "save the model as UTF-8; a Latin-1 or Windows-1252 editor writes "
+                              "'\u00b5' and '\u00b0' as single bytes 0xB5 and 0xB0");
+  }
   c.m = calloc(1, sizeof *c.m);
   if (!c.m) {
     ctx_free(&c);
@@ -366,10 +388,11 @@ sp_status sp_model_load(const char *path, sp_model **out, sp_model_diags *diags,
 {
   if (out) *out = NULL;
   if (!path || !out) return sp_fail(err, SP_EUSAGE, "sp_model_load: missing argument");
-  FILE *f = fopen(path, "rb");
-  if (!f)
-    return sp_fail(err, SP_EIO, "cannot open model file '%s': %s", path,
-                   strerror(errno));
+  /* Size-checked before a byte is read; not a pipe or a device. */
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *f = sp_file_open_input(path, "model", SP_MODEL_MAX_BYTES, err ? err : &local);
+  if (!f) return err ? err->code : local.code;
   /* Read at most one byte past the limit, so an oversized file is told
    * apart without reading it all. */
   size_t cap = 64 * 1024, len = 0;

@@ -29,6 +29,7 @@ void sp_record_time_utc(int64_t t, char buf[SP_RECORD_TIME_LEN])
 /* ---- writing ----------------------------------------------------------- */
 
 #include "json_build.h"
+#include "json_locate.h"
 
 static json_t *params_obj(wctx *w, const sp_family *f, const double *v)
 {
@@ -308,8 +309,21 @@ sp_status sp_record_write_text(const char *path, const char *text, int overwrite
 
 typedef struct {
   const char *name;
+  const char *text; /* the record's text, where a bad field is looked up */
+  size_t len;
   sp_error *err;
 } rctx;
+
+/* A message about field `field` of the record, at the field's value (or,
+ * for a missing field, at the object that lacks it) when it is found. */
+static sp_status bad_at(rctx *r, const char *field, const char *what)
+{
+  long line = 0, col = 0;
+  if (field && sp_json_locate(r->text, r->len, field, &line, &col))
+    return sp_fail_at(r->err, SP_EDATA, r->name, line, col, "fit record: field '%s' %s", field,
+                      what);
+  return sp_fail(r->err, SP_EDATA, "fit record %s: field '%s' %s", r->name, field, what);
+}
 
 static sp_status bad(rctx *r, const char *field, const char *fmt, ...)
     __attribute__((format(printf, 3, 4)));
@@ -320,7 +334,7 @@ static sp_status bad(rctx *r, const char *field, const char *fmt, ...)
   va_start(ap, fmt);
   vsnprintf(what, sizeof what, fmt, ap);
   va_end(ap);
-  return sp_fail(r->err, SP_EDATA, "fit record %s: field '%s' %s", r->name, field, what);
+  return bad_at(r, field, what);
 }
 
 /* Field lookup with its dotted path for messages. */
@@ -638,9 +652,12 @@ void sp_record_fit_clear(sp_record_fit *r)
 
 static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
 {
-  if (!json_is_object(root))
-    return sp_fail(r->err, SP_EDATA, "fit record %s: the top level must be a JSON object",
-                   r->name);
+  if (!json_is_object(root)) {
+    long line = 1, col = 1;
+    sp_json_locate(r->text, r->len, "", &line, &col);
+    return sp_fail_at(r->err, SP_EDATA, r->name, line, col,
+                      "fit record: the top level must be a JSON object");
+  }
   const char *s = NULL;
   TRY(need_str(r, root, "format", "format", 0, &s));
   /* set when the reader above returned SP_OK (not followed by the analyzer):
@@ -742,9 +759,14 @@ static sp_status validate(rctx *r, const json_t *root, sp_record_fit *out)
   TRY(need_str(r, root, "choice_reason", "choice_reason", 0, &reason));
   json_t *ch = field(root, "chosen");
   if (!ch) return bad(r, "chosen", "is missing");
-  if (json_is_null(ch))
+  if (json_is_null(ch)) {
+    long line = 0, col = 0;
+    if (sp_json_locate(r->text, r->len, "chosen", &line, &col) == 1)
+      return sp_fail_at(r->err, SP_EDATA, r->name, line, col,
+                        "fit record: no family was chosen (%s)", reason);
     return sp_fail(r->err, SP_EDATA, "fit record %s: no family was chosen (%s)", r->name,
                    reason);
+  }
   if (!json_is_object(ch)) return bad(r, "chosen", "must be an object or null");
   const sp_family *f;
   TRY(check_family(r, ch, "chosen", &f));
@@ -808,7 +830,7 @@ sp_status sp_record_fit_parse(const char *name, const char *text, size_t len,
   if (!root)
     return sp_fail_at(err, SP_EDATA, name, je.line, je.column,
                       "fit record is not valid JSON: %s", je.text);
-  rctx r = {name, err};
+  rctx r = {name, text, len, err};
   sp_status st = validate(&r, root, out);
   json_decref(root);
   if (st != SP_OK) sp_record_fit_clear(out);
@@ -818,8 +840,12 @@ sp_status sp_record_fit_parse(const char *name, const char *text, size_t len,
 sp_status sp_record_fit_read(const char *path, sp_record_fit *out, sp_error *err)
 {
   memset(out, 0, sizeof *out);
-  FILE *fp = fopen(path, "rb");
-  if (!fp) return sp_fail(err, SP_EIO, "cannot open fit record %s: %s", path, strerror(errno));
+  /* Records are a few kilobytes; 256 MiB is far beyond any real one.  The
+   * size is checked before a byte is read, and a pipe or device refused. */
+  sp_error local;
+  sp_error_clear(&local);
+  FILE *fp = sp_file_open_input(path, "fit record", (uint64_t)256 << 20, err ? err : &local);
+  if (!fp) return err ? err->code : local.code;
   size_t cap = 1 << 16, len = 0;
   char *buf = malloc(cap);
   if (!buf) {

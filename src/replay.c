@@ -14,6 +14,7 @@
 #include "scatterprop/provenance.h"
 #include "scatterprop/record.h"
 #include "scatterprop/run.h"
+#include "json_locate.h"
 #include "replay_internal.h"
 
 void sp_replay_options_init(sp_replay_options *o)
@@ -44,11 +45,8 @@ void sp_replay_report_clear(sp_replay_report *rep)
 
 char *sp_replay_read_file(const char *path, size_t *len, sp_error *err)
 {
-  FILE *fp = fopen(path, "rb");
-  if (!fp) {
-    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
-    return NULL;
-  }
+  FILE *fp = sp_file_open_input(path, "file", SP_REPLAY_MAX_FILE, err);
+  if (!fp) return NULL;
   size_t cap = 1 << 16, n = 0;
   char *buf = malloc(cap);
   for (;;) {
@@ -101,7 +99,9 @@ json_t *sp_replay_load_json(const char *path, sp_error *err)
   }
   if (!json_is_object(root)) {
     json_decref(root);
-    sp_fail(err, SP_EDATA, "record %s: the top level must be a JSON object", path);
+    long line = 1, col = 1;
+    sp_json_locate_file(path, "", &line, &col);
+    sp_fail_at(err, SP_EDATA, path, line, col, "record: the top level must be a JSON object");
     return NULL;
   }
   return root;
@@ -116,8 +116,15 @@ sp_status sp_replay_bad(const sp_replay_ctx *c, const char *path, const char *fm
   va_start(ap, fmt);
   vsnprintf(what, sizeof what, fmt, ap);
   va_end(ap);
-  sp_fail(c->err, SP_EDATA, "%s%srecord %s: field '%s' %s", c->kind ? c->kind : "",
-          c->kind ? " " : "", c->name, path, what);
+  /* The tree keeps no positions: the file is read again for the field's
+   * line and column (a record given as a buffer has none). */
+  long line = 0, col = 0;
+  if (sp_json_locate_file(c->name, path, &line, &col))
+    sp_fail_at(c->err, SP_EDATA, c->name, line, col, "%s%srecord: field '%s' %s",
+               c->kind ? c->kind : "", c->kind ? " " : "", path, what);
+  else
+    sp_fail(c->err, SP_EDATA, "%s%srecord %s: field '%s' %s", c->kind ? c->kind : "",
+            c->kind ? " " : "", c->name, path, what);
   return sp_error_hint(c->err, "the record was edited or damaged after it was made, or is not "
                                "a scatterprop record: take the original (an archive's "
                                "MANIFEST.sha256 gives its hash)");

@@ -22,6 +22,7 @@
 #include "scatterprop/runplot.h"
 #include "scatterprop/summary.h"
 
+#include "json_locate.h"
 #include "replay_internal.h"
 
 void sp_reportgen_options_init(sp_reportgen_options *o) { memset(o, 0, sizeof *o); }
@@ -292,6 +293,36 @@ typedef struct {
   sp_status st;
 } checker;
 
+/* A failure about the field at path (dotted, with [N] for elements), at
+ * the field's line and column in the file when it is found there (the
+ * tree keeps no positions, so the file is read again, on this error path
+ * only).  Sets c->st and returns it. */
+static sp_status cfail(checker *c, const char *path, const char *fmt, ...)
+    __attribute__((format(printf, 3, 4)));
+static sp_status cfail(checker *c, const char *path, const char *fmt, ...)
+{
+  char what[768];
+  va_list ap;
+  va_start(ap, fmt);
+  vsnprintf(what, sizeof what, fmt, ap);
+  va_end(ap);
+  long line = 0, col = 0;
+  if (sp_json_locate_file(c->file, path, &line, &col))
+    return c->st = sp_fail_at(c->err, SP_EDATA, c->file, line, col, "%s: %s", c->kind, what);
+  return c->st = sp_fail(c->err, SP_EDATA, "%s %s: %s", c->kind, c->file, what);
+}
+
+/* A failure about field `path` of the record in file, at the field's
+ * position when it is found there (as cfail, without a checker). */
+static sp_status field_fail(sp_error *err, const char *kind, const char *file, const char *path,
+                            const char *what)
+{
+  long line = 0, col = 0;
+  if (sp_json_locate_file(file, path, &line, &col))
+    return sp_fail_at(err, SP_EDATA, file, line, col, "%s: field '%s' %s", kind, path, what);
+  return sp_fail(err, SP_EDATA, "%s %s: field '%s' %s", kind, file, path, what);
+}
+
 static const char *type_words(int mask)
 {
   switch (mask & ~T_NULL) {
@@ -324,9 +355,10 @@ static json_t *field(checker *c, const json_t *o, const char *where, const char 
   if (c->st != SP_OK) return NULL;
   json_t *v = o ? json_object_get(o, key) : NULL;
   if (!type_ok(v, mask)) {
-    c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s%s%s' %s %s", c->kind, c->file, where,
-                    *where ? "." : "", key, v ? "must be" : "is missing; it must be",
-                    type_words(mask));
+    char path[512];
+    snprintf(path, sizeof path, "%s%s%s", where, *where ? "." : "", key);
+    cfail(c, path, "field '%s' %s %s", path, v ? "must be" : "is missing; it must be",
+          type_words(mask));
     return NULL;
   }
   return v;
@@ -338,8 +370,9 @@ static json_t *element(checker *c, const json_t *a, const char *where, size_t i,
   if (c->st != SP_OK) return NULL;
   json_t *v = json_array_get(a, i);
   if (!type_ok(v, mask)) {
-    c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s[%zu]' must be %s", c->kind, c->file,
-                    where, i, type_words(mask));
+    char path[512];
+    snprintf(path, sizeof path, "%s[%zu]", where, i);
+    cfail(c, path, "field '%s' must be %s", path, type_words(mask));
     return NULL;
   }
   return v;
@@ -380,8 +413,11 @@ static void check_hex(checker *c, const json_t *o, const char *where, const char
 {
   json_t *v = field(c, o, where, key, T_STR);
   if (v && !is_hex64(json_string_value(v)))
-    c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s.%s' must be 64 lower-case hex digits",
-                    c->kind, c->file, where, key);
+  {
+    char path[512];
+    snprintf(path, sizeof path, "%s.%s", where, key);
+    cfail(c, path, "field '%s' must be 64 lower-case hex digits", path);
+  }
 }
 
 /* Every field of the run record that the report reads. */
@@ -390,14 +426,12 @@ static sp_status check_run_record(checker *c, const json_t *root)
   char w[128], w2[160];
   json_t *fmt = field(c, root, "", "format", T_STR);
   if (fmt && strcmp(json_string_value(fmt), SP_RECORD_RUN_FORMAT) != 0)
-    return c->st = sp_fail(c->err, SP_EDATA, "%s %s: format is '%s', not '%s'", c->kind,
-                           c->file, json_string_value(fmt), SP_RECORD_RUN_FORMAT);
+    return cfail(c, "format", "format is '%s', not '%s'", json_string_value(fmt),
+                 SP_RECORD_RUN_FORMAT);
   json_t *ver = field(c, root, "", "version", T_INT);
   if (ver && json_integer_value(ver) != SP_RECORD_RUN_VERSION)
-    return c->st = sp_fail(c->err, SP_EDATA, "%s %s: version %lld; this scatterprop reads "
-                                             "version %d",
-                           c->kind, c->file, (long long)json_integer_value(ver),
-                           SP_RECORD_RUN_VERSION);
+    return cfail(c, "version", "version %lld; this scatterprop reads version %d",
+                 (long long)json_integer_value(ver), SP_RECORD_RUN_VERSION);
   json_t *tool = field(c, root, "", "tool", T_OBJ);
   static const char *const tool_keys[] = {"name", "version", "git", "compiler", "gsl", "system"};
   for (size_t i = 0; i < 6; i++) field(c, tool, "tool", tool_keys[i], T_STR | T_NULL);
@@ -425,11 +459,9 @@ static sp_status check_run_record(checker *c, const json_t *root)
     json_t *src = field(c, in, w, "source", T_STR);
     json_t *fr = field(c, in, w, "fit_record", T_OBJ | T_NULL);
     if (src && strcmp(json_string_value(src), "fit") == 0) {
-      if (c->st == SP_OK && !json_is_object(fr))
-        return c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s.fit_record' must be an "
-                                                 "object for a fitted input",
-                               c->kind, c->file, w);
       snprintf(w2, sizeof w2, "%s.fit_record", w);
+      if (c->st == SP_OK && !json_is_object(fr))
+        return cfail(c, w2, "field '%s' must be an object for a fitted input", w2);
       field(c, fr, w2, "path", T_STR);
       field(c, fr, w2, "size", T_INT);
       check_hex(c, fr, w2, "sha256");
@@ -491,8 +523,7 @@ static sp_status check_run_record(checker *c, const json_t *root)
       char w3[200];
       snprintf(w3, sizeof w3, "%s.%s", w2, ck[i]);
       if (a && json_array_size(a) != 2 && c->st == SP_OK)
-        return c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s' must hold two numbers",
-                               c->kind, c->file, w3);
+        return cfail(c, w3, "field '%s' must hold two numbers", w3);
       for (size_t e = 0; a && e < 2; e++) element(c, a, w3, e, T_NUM | T_NULL);
     }
     snprintf(w2, sizeof w2, "%s.percentiles", w);
@@ -547,8 +578,7 @@ static sp_status check_run_record(checker *c, const json_t *root)
     json_t *iv = field(c, l, w, "interval", T_ARR);
     snprintf(w2, sizeof w2, "%s.interval", w);
     if (iv && json_array_size(iv) != 2 && c->st == SP_OK)
-      return c->st = sp_fail(c->err, SP_EDATA, "%s %s: field '%s' must hold two numbers",
-                             c->kind, c->file, w2);
+      return cfail(c, w2, "field '%s' must hold two numbers", w2);
     for (size_t e = 0; iv && e < 2; e++) element(c, iv, w2, e, T_NUM | T_NULL);
     field(c, l, w, "interval_kind", T_STR);
     field(c, l, w, "confidence", T_NUM);
@@ -643,6 +673,22 @@ static sp_status check_fit_record(checker *c, const json_t *root)
 /* ---- files ---------------------------------------------------------------- */
 
 static int readable(const char *path) { return access(path, R_OK) == 0; }
+
+/* The JSON of a record file, opened by sp_file_open_input (a regular file
+ * of at most 256 MiB, so a pipe cannot block and a device cannot fill
+ * memory).  NULL with *opened 0 and err set when it cannot be opened; NULL
+ * with *opened 1 and je set when it is not JSON. */
+static json_t *load_record(const char *path, const char *what, int *opened, json_error_t *je,
+                           sp_error *err)
+{
+  *opened = 0;
+  FILE *fp = sp_file_open_input(path, what, (uint64_t)256 << 20, err);
+  if (!fp) return NULL;
+  *opened = 1;
+  json_t *root = json_loadf(fp, JSON_REJECT_DUPLICATES, je);
+  fclose(fp);
+  return root;
+}
 
 /* The folder part of path ("." when it has none), into buf. */
 static void dir_of(const char *path, char *buf, size_t n)
@@ -780,8 +826,8 @@ static sp_status open_fit(fitsrc *f, const json_t *fr, const char *resolved,
   json_error_t je;
   f->root = json_load_file(resolved, 0, &je);
   if (!f->root)
-    return sp_fail(err, SP_EDATA, "fit record %s: not JSON (line %d: %s)", resolved, je.line,
-                   je.text);
+    return sp_fail_at(err, SP_EDATA, resolved, je.line, je.column,
+                      "fit record is not valid JSON: %s", je.text);
   checker c = {"fit record", resolved, err, SP_OK};
   if ((st = check_fit_record(&c, f->root)) != SP_OK) return st;
   json_t *data = json_object_get(f->root, "data");
@@ -957,7 +1003,9 @@ static sp_status repeat_run(const json_t *root, const char *file, const char *mo
   sp_error_clear(&me);
   if (sp_engine_method_find(gstr(o, "method"), &eo->method, &me) != SP_OK) {
     sp_run_free(run);
-    return sp_fail(err, SP_EDATA, "run record %s: field 'options.method': %s", file, me.msg);
+    char what[SP_ERROR_MSG_MAX + 16];
+    snprintf(what, sizeof what, "is wrong: %.1000s", me.msg);
+    return field_fail(err, "run record", file, "options.method", what);
   }
   eo->seed = guint(o, "seed");
   eo->samples = guint(o, "samples_requested");
@@ -979,17 +1027,21 @@ static sp_status repeat_run(const json_t *root, const char *file, const char *mo
   if (json_is_array(hr)) {
     ar->hr = num_array(hr, &n);
     eo->hist_range = ar->hr;
-    if (n != 2 * nout) st = sp_fail(err, SP_EDATA, "run record %s: field 'options."
-                                                   "histogram_range' must hold 2 x %zu numbers",
-                                    file, nout);
+    if (n != 2 * nout) {
+      char what[64];
+      snprintf(what, sizeof what, "must hold 2 x %zu numbers", nout);
+      st = field_fail(err, "run record", file, "options.histogram_range", what);
+    }
   }
   const json_t *tl = json_object_get(o, "tolerances");
   if (json_is_array(tl)) {
     ar->tol = num_array(tl, &n);
     eo->tolerance = ar->tol;
-    if (n != nout) st = sp_fail(err, SP_EDATA, "run record %s: field 'options.tolerances' "
-                                               "must hold %zu numbers",
-                                file, nout);
+    if (n != nout) {
+      char what[64];
+      snprintf(what, sizeof what, "must hold %zu numbers", nout);
+      st = field_fail(err, "run record", file, "options.tolerances", what);
+    }
   }
   if (!ar->pct || (json_is_array(hr) && !ar->hr) || (json_is_array(tl) && !ar->tol))
     st = sp_fail(err, SP_ENOMEM, "out of memory");
@@ -1790,7 +1842,9 @@ static sp_status runsrc_load(runsrc *s, const char *run_record, sp_error *err)
   if (!readable(run_record))
     return sp_fail(err, SP_EIO, "run record %s cannot be read: %s", run_record, strerror(errno));
   json_error_t je;
-  s->root = json_load_file(run_record, 0, &je);
+  int opened;
+  s->root = load_record(run_record, "run record", &opened, &je, err);
+  if (!s->root && !opened) return err ? err->code : SP_EIO;
   if (!s->root) {
     sp_fail_at(err, SP_EDATA, run_record, je.line, je.column, "run record: not JSON: %s",
                je.text);
@@ -2031,7 +2085,9 @@ sp_status sp_reportgen_record_kind(const char *path, sp_reportgen_kind *kind, sp
   if (!readable(path))
     return sp_fail(err, SP_EIO, "record %s cannot be read: %s", path, strerror(errno));
   json_error_t je;
-  json_t *root = json_load_file(path, 0, &je);
+  int opened;
+  json_t *root = load_record(path, "record", &opened, &je, err);
+  if (!root && !opened) return err ? err->code : SP_EIO;
   const json_t *fmt = json_is_object(root) ? json_object_get(root, "format") : NULL;
   if (json_is_string(fmt) && strcmp(json_string_value(fmt), SP_RECORD_FIT_FORMAT) == 0)
     *kind = SP_REPORTGEN_FIT;

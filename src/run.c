@@ -31,17 +31,17 @@ void sp_run_options_init(sp_run_options *o)
   o->engine.rank_sensitivity = 1;
 }
 
+/* The model file's text: a regular file, size-checked before a byte is
+ * read, and never more than one byte past SP_MODEL_MAX_BYTES (a file that
+ * grows while it is read is then refused by sp_model_compile). */
 static char *read_all(const char *path, size_t *len, sp_error *err)
 {
-  FILE *fp = fopen(path, "rb");
-  if (!fp) {
-    sp_fail(err, SP_EIO, "%s: cannot open: %s", path, strerror(errno));
-    return NULL;
-  }
+  FILE *fp = sp_file_open_input(path, "model", SP_MODEL_MAX_BYTES, err);
+  if (!fp) return NULL;
   size_t cap = 4096, n = 0;
   char *buf = malloc(cap);
   size_t got;
-  while (buf && (got = fread(buf + n, 1, cap - n - 1, fp)) > 0) {
+  while (buf && n <= SP_MODEL_MAX_BYTES && (got = fread(buf + n, 1, cap - n - 1, fp)) > 0) {
     n += got;
     if (cap - n - 1 == 0) {
       char *nb = realloc(buf, cap * 2);

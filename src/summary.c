@@ -36,12 +36,13 @@ sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
   *ngroups = 0;
   const sp_column *c = sp_table_column(t, by);
   if (!c) {
-    sp_fail(err, SP_EDATA, "%s: no column named '%s' to group by", t->path, by);
+    sp_fail_at(err, SP_EDATA, t->path, t->header_line, 0,
+               "no column named '%s' in the header to group by", by);
     return sp_error_hint(err, "--by takes the name of a text column such as a lot id");
   }
   if (c->kind != SP_COLUMN_TEXT) {
-    sp_fail(err, SP_EDATA, "%s: column '%s' holds numbers; --by needs a text column",
-            t->path, c->header);
+    sp_fail_at(err, SP_EDATA, t->path, t->header_line, (long)c->index + 1,
+               "column '%s' holds numbers; --by needs a text column", c->header);
     if (c->unit_text)
       return sp_error_hint(err, "a column with a unit holds measurements; group by a column "
                                 "of lot or batch ids (a header cell without a unit)");
@@ -183,7 +184,8 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
     for (size_t i = 0; i < ncolumns; i++) {
       const sp_column *c = sp_table_column(t, columns[i]);
       if (!c) {
-        st = sp_fail(err, SP_EDATA, "%s: no column named '%s'", t->path, columns[i]);
+        st = sp_fail_at(err, SP_EDATA, t->path, t->header_line, 0,
+                        "no column named '%s' in the header", columns[i]);
         break;
       }
       int seen = 0;
@@ -191,8 +193,8 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
         seen |= cols[k] == c;
       if (seen) continue; /* named twice (by name and by header, say): described once */
       if (c->kind != SP_COLUMN_NUMERIC) {
-        st = sp_fail(err, SP_EDATA, "%s: column '%s' holds text, not numbers", t->path,
-                     c->header);
+        st = sp_fail_at(err, SP_EDATA, t->path, t->header_line, (long)c->index + 1,
+                        "column '%s' holds text, not numbers", c->header);
         sp_error_hint(err, "its first reading is not a number; a unit in the header "
                            "('%s [mm]') makes a column numeric, so a bad reading is then "
                            "reported with its line", c->name);
@@ -205,7 +207,8 @@ sp_status sp_summary_build(const sp_table *t, const char *const *columns, size_t
       if (t->cols[i].kind == SP_COLUMN_NUMERIC) cols[nc++] = &t->cols[i];
   }
   if (st == SP_OK && nc == 0) {
-    st = sp_fail(err, SP_EDATA, "%s: no numeric column to describe", t->path);
+    st = sp_fail_at(err, SP_EDATA, t->path, t->header_line, 0,
+                    "no numeric column to describe in the header");
     /* Name the text columns and what made each one text. */
     char list[600] = "";
     size_t l = 0;

@@ -10,6 +10,9 @@
  *  - that no file was left behind: the folder holds exactly the copied
  *    files afterwards (so no output file and no *.tmp-* temporary), unless
  *    the case names a file it creates.
+ * Before any case runs, every failing case must assert a position
+ * (FILE:LINE: or FILE:LINE:COL: in an err line) or say with 'nopos REASON'
+ * why none applies (an option's value, a missing file, a whole column).
  * The manifest's format is described at its top.  SP_CLI_WRAPPER (for
  * example "valgrind --error-exitcode=99 --leak-check=full -q") is put
  * before the program when set, so the same cases check the error paths
@@ -49,6 +52,7 @@ typedef struct {
   char *creates[MAX_LINES];  /* files the run may leave */
   size_t ncreates;
   int slow;                  /* megabytes of input: skipped under SP_CLI_WRAPPER */
+  char *nopos;               /* why no err line has a position, or NULL */
 } bad_case;
 
 static bad_case cases[MAX_CASES];
@@ -119,6 +123,12 @@ static void load_manifest(void)
       c->out[c->nout++] = dupstr(val, strlen(val));
     } else if (strcmp(key, "noout") == 0 && c->nnoout < MAX_LINES) {
       c->noout[c->nnoout++] = dupstr(val, strlen(val));
+    } else if (strcmp(key, "nopos") == 0) {
+      if (!*val) {
+        fprintf(stderr, "check_bad: MANIFEST:%ld: nopos needs a reason\n", lineno);
+        exit(EXIT_FAILURE);
+      }
+      c->nopos = dupstr(val, strlen(val));
     } else if (strcmp(key, "slow") == 0) {
       c->slow = 1;
     } else if (strcmp(key, "creates") == 0 && c->ncreates < MAX_LINES) {
@@ -144,6 +154,40 @@ static void load_manifest(void)
               cases[i].line, cases[i].name);
       exit(EXIT_FAILURE);
     }
+}
+
+/* Does s hold a position, "FILE:LINE:" (FILE not ending in a blank)? */
+static int has_position(const char *s)
+{
+  for (const char *p = strchr(s, ':'); p; p = strchr(p + 1, ':')) {
+    if (p == s || p[-1] == ' ') continue;
+    size_t nd = strspn(p + 1, "0123456789");
+    if (nd > 0 && p[1 + nd] == ':') return 1;
+  }
+  return 0;
+}
+
+/* Every failing case says where, or why it cannot. */
+static void check_positions(void)
+{
+  for (size_t i = 0; i < ncases; i++) {
+    const bad_case *c = &cases[i];
+    if (c->exit_code == 0) continue;
+    int pos = 0;
+    for (size_t k = 0; k < c->nerr && !pos; k++) pos = has_position(c->err[k]);
+    if (pos && c->nopos) {
+      fprintf(stderr, "check_bad: MANIFEST:%ld: case %s has a position and a 'nopos'\n", c->line,
+              c->name);
+      exit(EXIT_FAILURE);
+    }
+    if (!pos && !c->nopos) {
+      fprintf(stderr,
+              "check_bad: MANIFEST:%ld: case %s fails (exit %d) but no err line has a "
+              "FILE:LINE: position; add one, or a 'nopos REASON' line\n",
+              c->line, c->name, c->exit_code);
+      exit(EXIT_FAILURE);
+    }
+  }
 }
 
 /* ---- generated files ----------------------------------------------------------
@@ -379,8 +423,9 @@ START_TEST(test_case)
     ck_assert_msg(strstr(etext, "scatterprop: error: ") != NULL,
                   "case %s (MANIFEST:%ld): no 'scatterprop: error: ' line:\n%.2000s", c->name,
                   c->line, etext);
-  /* A failed summary of a CSV file also says what to do about it. */
-  if (c->exit_code != 0 && strncmp(c->run, "summary ", 8) == 0)
+  /* A failed summary of a CSV file, and every usage error, also says
+   * what to do about it. */
+  if (c->exit_code != 0 && (strncmp(c->run, "summary ", 8) == 0 || c->exit_code == 2))
     ck_assert_msg(strstr(etext, "\n  hint: ") != NULL, "case %s (MANIFEST:%ld): no hint:\n%.2000s",
                   c->name, c->line, etext);
   for (size_t k = 0; k < c->nout; k++)
@@ -472,6 +517,7 @@ END_TEST
 int main(void)
 {
   load_manifest();
+  check_positions();
   Suite *s = suite_create("bad");
   TCase *tc = tcase_create("corpus");
   tcase_set_timeout(tc, 300);

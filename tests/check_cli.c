@@ -2,6 +2,7 @@
  * with positions, and what a user reads.  The commands run through
  * /bin/sh in a temporary folder, with their output captured there. */
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "sp_test.h"
@@ -54,6 +55,43 @@ START_TEST(test_missing_file_is_io_error)
 }
 END_TEST
 
+/* A FIFO without a writer would block open(2), and a device such as
+ * /dev/zero never ends: every reader refuses anything but a regular file
+ * before reading a byte, at once (the 'timeout 20' turns a hang into exit
+ * 124, which fails the test), as an I/O error with a hint; and a file
+ * beyond a reader's size limit is refused from its size. */
+START_TEST(test_fifo_and_device_refused)
+{
+  ck_assert_int_eq(mkfifo(path_in("pipe"), 0600), 0);
+  static const char *const cmds[] = {
+      "summary pipe", "fit pipe --column d --out f.json", "propagate pipe --samples 100",
+      "plot pipe --out charts", "replay pipe", "report pipe --out r.html",
+      "propagate /dev/zero --samples 100", "summary /dev/zero"};
+  for (size_t i = 0; i < sizeof cmds / sizeof cmds[0]; i++) {
+    int rc = sh("timeout 20 " SP " %s", cmds[i]);
+    ck_assert_msg(rc == 6, "'%s': exit %d, want 6: %s", cmds[i], rc, err_text);
+    ASSERT_HAS(err_text, "is not a regular file (a pipe, a device or a socket)");
+    ASSERT_HAS(err_text, "hint: copy the ");
+  }
+  /* Sparse files larger than a reader's limit are refused from their size
+   * alone, before a byte is read (truncate(1) makes them in no time, and
+   * reading 300 MiB of zeros would take seconds). */
+  ck_assert_int_eq(sh("truncate -s 300M big.json && truncate -s 9M big.spm"), 0);
+  ck_assert_int_eq(sh("timeout 20 " SP " plot big.json --out charts"), 3);
+  ASSERT_HAS(err_text, "big.json: the fit record is larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " replay big.json"), 3);
+  ASSERT_HAS(err_text, "big.json: the file is larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " report big.json --out r.html"), 3);
+  ASSERT_HAS(err_text, "larger than 268435456 bytes (it has 314572800)");
+  ck_assert_int_eq(sh("timeout 20 " SP " propagate big.spm --samples 100"), 3);
+  ASSERT_HAS(err_text, "big.spm: the model is larger than 8388608 bytes (it has 9437184)");
+  /* nothing written beside the pipe */
+  ck_assert_int_ne(access(path_in("f.json"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("r.html"), F_OK), 0);
+  ck_assert_int_ne(access(path_in("charts"), F_OK), 0);
+}
+END_TEST
+
 START_TEST(test_bad_number_position)
 {
   char path[] = "/tmp/wire_XXXXXX";
@@ -102,9 +140,10 @@ START_TEST(test_demo_summary_by_lot)
   ASSERT_HAS(out_text, "CAUTION");
   /* The lot column is text: grouping by a numeric column is refused. */
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --by wire_d", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "holds numbers; --by needs a text column");
+  /* at its header cell: line 5 (after four '#' lines), cell 3 */
+  ASSERT_HAS(err_text, "wire_d.csv:5:3: column 'wire_d [mm]' holds numbers; --by needs a text column");
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --column diameter", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "no column named 'diameter'");
+  ASSERT_HAS(err_text, "wire_d.csv:5: no column named 'diameter'");
   ASSERT_HAS(err_text, "the columns are: 'part', 'lot', 'wire_d'");
 }
 END_TEST
@@ -122,7 +161,7 @@ END_TEST
 START_TEST(test_summary_of_text_column_refused)
 {
   ck_assert_int_eq(cli("summary '%s/data/wire_d.csv' --column lot", SP_SOURCE_DIR), 3);
-  ASSERT_HAS(err_text, "column 'lot' holds text, not numbers");
+  ASSERT_HAS(err_text, "wire_d.csv:5:2: column 'lot' holds text, not numbers");
 }
 END_TEST
 
@@ -205,6 +244,7 @@ static Suite *cli_suite(void)
   tcase_add_checked_fixture(tc, setup, teardown);
   tcase_add_test(tc, test_help_and_caution);
   tcase_add_test(tc, test_usage_errors);
+  tcase_add_test(tc, test_fifo_and_device_refused);
   tcase_add_test(tc, test_missing_file_is_io_error);
   tcase_add_test(tc, test_bad_number_position);
   tcase_add_test(tc, test_no_negative_zero);

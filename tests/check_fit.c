@@ -1140,6 +1140,47 @@ START_TEST(test_scale_equivariance)
 }
 END_TEST
 
+/* The Weibull's finite-difference covariance on data near the ends of the
+ * double range: its point estimates scale with the data (equivariance),
+ * but the variance of the scale, of the order of scale^2 (1e600 or
+ * 1e-600), has no double, and the note says so instead of "not positive
+ * definite" (an overflowed Hessian) or "non-positive variance" (an
+ * underflowed one).  The same data at scale 1 keep their covariance. */
+START_TEST(test_covariance_out_of_range)
+{
+  enum { N = 40 };
+  double y[N], z[N];
+  sp_pcg64 g;
+  sp_rng_block_stream(&g, 59, 0, 0);
+  const double th[2] = {2.5, 1.0};
+  fam("weibull")->sample(th, &g, y, N);
+  const char *fams[1] = {"weibull"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_result r;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_int_eq(sp_fit_run(y, N, &o, &r, &e), SP_OK);
+  ck_assert_msg(r.cand[0].cov_available, "%s", r.cand[0].cov_note);
+  const double shape = r.cand[0].theta[0], scale = r.cand[0].theta[1];
+  sp_fit_result_clear(&r);
+  const double cs[2] = {0x1p1000, 0x1p-1000}; /* powers of two: the data scale exactly */
+  for (int q = 0; q < 2; q++) {
+    for (int i = 0; i < N; i++) z[i] = y[i] * cs[q];
+    ck_assert_int_eq(sp_fit_run(z, N, &o, &r, &e), SP_OK);
+    ASSERT_REL(r.cand[0].theta[0], shape, 1e-7);
+    ASSERT_REL(r.cand[0].theta[1], scale * cs[q], 1e-7);
+    ck_assert(!r.cand[0].cov_available);
+    ASSERT_HAS(r.cand[0].cov_note, "the variance of 'scale'");
+    ASSERT_HAS(r.cand[0].cov_note, "is outside the range of a double; rescale the data");
+    sp_fit_result_clear(&r);
+  }
+}
+END_TEST
+
 /* The registered normal's covariance comes from the closed form (Var(m)
  * = s^2/n, Var(s) = s^2/(2n) at the MLE); the finite-difference Hessian
  * of the test family on the same data must agree with it (1e-6, the
@@ -1249,6 +1290,49 @@ START_TEST(test_grouped)
 }
 END_TEST
 
+/* Lots interleaved, many of them: each value lands in its own lot, in the
+ * order the labels first appear, and the grouping is linear in the rows
+ * (it was quadratic: 64 000 one-row lots took 21 s; the tcase's 60 s
+ * timeout catches a relapse at 100 000 two-row lots, some 100 s then). */
+START_TEST(test_grouped_many_lots)
+{
+  enum { NLOT = 100000, N = 2 * NLOT };
+  double *x = malloc(N * sizeof *x);
+  const char **lot = malloc(N * sizeof *lot);
+  char *labels = malloc((size_t)NLOT * 16);
+  ck_assert(x && lot && labels);
+  for (int i = 0; i < NLOT; i++) snprintf(labels + (size_t)i * 16, 16, "L%d", i);
+  for (int i = 0; i < N; i++) {
+    /* lot k holds rows k and k + NLOT, with the values 2k and 2k + 1 */
+    int k = i % NLOT;
+    lot[i] = labels + (size_t)k * 16;
+    x[i] = 2.0 * k + (i >= NLOT);
+  }
+  const char *fams[1] = {"normal"};
+  sp_fit_options o;
+  sp_fit_options_init(&o);
+  o.families = fams;
+  o.nfamilies = 1;
+  o.pvalue = SP_FIT_PVALUE_NONE;
+  sp_fit_grouped gr;
+  sp_error e;
+  sp_error_clear(&e);
+  ck_assert_msg(sp_fit_run_grouped(x, lot, N, &o, &gr, &e) == SP_OK, "%s", e.msg);
+  ck_assert_uint_eq(gr.ngroups, NLOT);
+  for (int k = 0; k < NLOT; k += 24999) {
+    ck_assert_str_eq(gr.groups[k].label, labels + (size_t)k * 16);
+    ck_assert_uint_eq(gr.groups[k].fit.n, 2);
+    /* the MLE mean of {2k, 2k + 1} is 2k + 1/2 (closed form) */
+    ASSERT_REL(gr.groups[k].fit.cand[0].theta[0], 2.0 * k + 0.5, 1e-12);
+  }
+  ck_assert_uint_eq(gr.pooled.n, N);
+  sp_fit_grouped_clear(&gr);
+  free(labels);
+  free(lot);
+  free(x);
+}
+END_TEST
+
 static Suite *fit_suite(void)
 {
   Suite *s = suite_create("fit");
@@ -1280,6 +1364,11 @@ static Suite *fit_suite(void)
   tcase_add_test(tc, test_approximations);
   tcase_add_test(tc, test_scale_equivariance);
   tcase_add_test(tc, test_covariance_analytic_vs_fd);
+  tcase_add_test(tc, test_covariance_out_of_range);
+  suite_add_tcase(s, tc);
+  tc = tcase_create("many lots");
+  tcase_set_timeout(tc, 60);
+  tcase_add_test(tc, test_grouped_many_lots);
   suite_add_tcase(s, tc);
   tc = tcase_create("choice");
   tcase_add_test(tc, test_rank_choice);

@@ -806,8 +806,24 @@ START_TEST(test_record_errors)
   char *bad = replace_value(good, NULL, "\"rank\": ", "\"x\"");
   ck_assert_int_eq(sp_fitplot_plan_parse("bad.json", bad, strlen(bad), &plan, NULL, &e),
                    SP_EDATA);
-  ASSERT_HAS(e.msg, "fit record bad.json: field 'candidates[");
+  ASSERT_HAS(e.msg, "fit record: field 'candidates[");
   ASSERT_HAS(e.msg, "].rank' must be null or an integer");
+  {
+    /* at the bad value: its line and column, counted here */
+    const char *v = strstr(bad, "\"rank\": \"x\"") + strlen("\"rank\": ");
+    long line = 1, col = 1;
+    for (const char *q = bad; q < v; q++) {
+      if (*q == '\n') {
+        line++;
+        col = 1;
+      } else if (((unsigned char)*q & 0xC0) != 0x80) {
+        col++; /* characters, not bytes */
+      }
+    }
+    ck_assert_str_eq(e.file, "bad.json");
+    ck_assert_int_eq(e.line, line);
+    ck_assert_int_eq(e.col, col);
+  }
   free(bad);
 
   /* A lot's n that is negative. */
@@ -966,7 +982,7 @@ START_TEST(test_cli_plot_errors)
 
   /* Missing record: I/O error, exit 6. */
   ck_assert_int_eq(cli("plot '%s/none.json' --out '%s/x'", dir, dir), 6);
-  ASSERT_HAS(err_text, "cannot open fit record");
+  ASSERT_HAS(err_text, ": cannot open: ");
 
   /* A bad field: bad data, exit 3, the field named. */
   char *text = slurp(rec);
@@ -974,9 +990,26 @@ START_TEST(test_cli_plot_errors)
   char badrec[DIR_MAX];
   snprintf(badrec, sizeof badrec, "%s/bad.json", dir);
   write_file(badrec, bad);
-  free(bad);
   ck_assert_int_eq(cli("plot '%s' --out '%s/x'", badrec, dir), 3);
-  ASSERT_HAS(err_text, "bad.json: field 'candidates[0].rejected' must be true or false");
+  {
+    /* FILE:LINE:COL of the bad value, counted here */
+    const char *v = strstr(bad, "\"rejected\": \"no\"") + strlen("\"rejected\": ");
+    long line = 1, col = 1;
+    for (const char *q = bad; q < v; q++) {
+      if (*q == '\n') {
+        line++;
+        col = 1;
+      } else if (((unsigned char)*q & 0xC0) != 0x80) {
+        col++; /* characters, not bytes */
+      }
+    }
+    char want[DIR_MAX + 128];
+    snprintf(want, sizeof want,
+             "%s:%ld:%ld: fit record: field 'candidates[0].rejected' must be true or false",
+             badrec, line, col);
+    ASSERT_HAS(err_text, want);
+  }
+  free(bad);
 
   bad = replace_value(text, NULL, "\"rank\": ", "0"); /* rank 0: out of range */
   write_file(badrec, bad);

@@ -369,6 +369,7 @@ START_TEST(test_column_selection)
   const char *csv = "a [mm],b [mm]\n1,2\n";
   ck_assert_int_eq(sp_table_read_buffer("t.csv", csv, strlen(csv), &o, &t2, &err), SP_EDATA);
   ck_assert_ptr_nonnull(strstr(err.msg, "no column named 'nope'"));
+  ck_assert_int_eq(err.line, 1); /* the header line: no cell holds it */
   ck_assert_ptr_nonnull(strstr(err.hint, "'a', 'b'"));
 }
 END_TEST

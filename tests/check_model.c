@@ -1069,7 +1069,7 @@ START_TEST(test_load_file)
   unlink(path);
   ck_assert_int_eq(sp_model_load(path, &m, &d, &err), SP_EIO);
   ck_assert_ptr_null(m);
-  ck_assert(strstr(err.msg, "cannot open model file") != NULL);
+  ck_assert(strstr(err.msg, ": cannot open: ") != NULL);
 }
 END_TEST
 

@@ -107,8 +107,12 @@ START_TEST(test_write_read_file)
 }
 END_TEST
 
+/* Where the last mutate() put its replacement (a byte offset). */
+static size_t mutated_at;
+
 /* Replaces the value of the first "key": after anchor (up to the next ','
- * or newline) with repl.  Returns an owned copy. */
+ * or newline) with repl.  Returns an owned copy; mutated_at is the offset
+ * of the new value. */
 static char *mutate(const char *text, const char *anchor, const char *key,
                     const char *repl)
 {
@@ -133,13 +137,36 @@ static char *mutate(const char *text, const char *anchor, const char *key,
   size_t n = strlen(text) + strlen(repl) + 1;
   char *out = malloc(n);
   size_t pre = (size_t)(v - text);
+  mutated_at = pre;
   memcpy(out, text, pre);
   strcpy(out + pre, repl);
   strcat(out, end);
   return out;
 }
 
-static void expect_bad(const char *text, const char *want)
+/* The 1-based line and column (in UTF-8 characters, as jansson counts)
+ * of byte offset off of text: counted here, independently of the reader's
+ * scanner. */
+static void line_col(const char *text, size_t off, long *line, long *col)
+{
+  *line = 1;
+  *col = 1;
+  for (size_t i = 0; i < off; i++) {
+    if (text[i] == '\n') {
+      (*line)++;
+      *col = 1;
+    } else if (((unsigned char)text[i] & 0xC0) != 0x80) {
+      (*col)++;
+    }
+  }
+}
+
+#define NO_POS ((size_t)-1)
+
+/* The record fails with SP_EDATA and want in its message; when at is not
+ * NO_POS, the error is placed at byte offset at of the text (the value
+ * the message is about), in wire.json. */
+static void expect_bad_at(const char *text, const char *want, size_t at)
 {
   sp_record_fit r;
   sp_error e;
@@ -147,13 +174,27 @@ static void expect_bad(const char *text, const char *want)
   sp_status st = sp_record_fit_parse("wire.json", text, strlen(text), &r, &e);
   ck_assert_int_eq(st, SP_EDATA);
   ck_assert_msg(strstr(e.msg, want) != NULL, "message '%s' lacks '%s'", e.msg, want);
+  if (at != NO_POS) {
+    long line, col;
+    line_col(text, at, &line, &col);
+    ck_assert_msg(strcmp(e.file, "wire.json") == 0 && e.line == line && e.col == col,
+                  "'%s' is at %s:%ld:%ld, want wire.json:%ld:%ld", e.msg, e.file, e.line, e.col,
+                  line, col);
+  }
 }
 
+static void expect_bad(const char *text, const char *want)
+{
+  expect_bad_at(text, want, NO_POS);
+}
+
+/* The value of key (after anchor) replaced by repl: the message names the
+ * field and points at the new value. */
 static void case_bad(const char *anchor, const char *key, const char *repl,
                      const char *want)
 {
   char *t = mutate(record_text, anchor, key, repl);
-  expect_bad(t, want);
+  expect_bad_at(t, want, mutated_at);
   free(t);
 }
 
@@ -161,7 +202,7 @@ START_TEST(test_bad_fields)
 {
   char want[256];
   case_bad(NULL, "format", "\"other\"",
-           "fit record wire.json: field 'format' must be \"scatterprop-fit\"");
+           "fit record: field 'format' must be \"scatterprop-fit\"");
   case_bad(NULL, "version", "2", "field 'version' is 2; this build reads version 1");
   case_bad(NULL, "version", "\"1\"", "field 'version' must be an integer");
   case_bad(NULL, "tool", "[]", "field 'tool' must be an object");
@@ -177,9 +218,16 @@ START_TEST(test_bad_fields)
   case_bad("\"data\"", "unit", "5", "field 'data.unit' must be a string or null");
   case_bad("\"data\"", "n", "0", "field 'data.n' must be at least 1, got 0");
   case_bad("\"data\"", "missing", "1.5", "field 'data.missing' must be an integer");
-  case_bad("\"options\"", "families", "[1]", "field 'options.families[0]' must be a string");
-  case_bad("\"options\"", "fixed", "{\"shape\": \"2\"}",
-           "field 'options.fixed.shape' must be a number");
+  {
+    /* at the element, one character into the array */
+    char *t = mutate(record_text, "\"options\"", "families", "[1]");
+    expect_bad_at(t, "field 'options.families[0]' must be a string", mutated_at + 1);
+    free(t);
+    t = mutate(record_text, "\"options\"", "fixed", "{\"shape\": \"2\"}");
+    expect_bad_at(t, "field 'options.fixed.shape' must be a number",
+                  mutated_at + strlen("{\"shape\": "));
+    free(t);
+  }
   case_bad("\"options\"", "select", "\"best\"",
            "field 'options.select' must be aicc, aic, bic or loglik");
   case_bad("\"options\"", "alpha", "1.5", "field 'options.alpha' must be in (0, 1)");
@@ -204,26 +252,26 @@ START_TEST(test_bad_fields)
     const char *second = strstr(strstr(record_text, "\"candidates\""), "\"family\": \"weibull\"");
     ck_assert(second != NULL);
     char *t = mutate(record_text, "\"family\": \"weibull\",\n      \"status\"", "p", "1.5");
-    expect_bad(t, "field 'candidates[1].gof.A2.p' must be in [0, 1]");
+    expect_bad_at(t, "field 'candidates[1].gof.A2.p' must be in [0, 1]", mutated_at);
     free(t);
   }
   {
     const char *anchor = "\"chosen\": {";
     const sp_family *cf = fit.cand[fit.chosen].family;
     char *t;
-    snprintf(want, sizeof want, "fit record wire.json: field 'chosen.params.%s' must be a number",
+    snprintf(want, sizeof want, "fit record: field 'chosen.params.%s' must be a number",
              cf->param_names[0]);
     t = mutate(record_text, anchor, cf->param_names[0], "\"12\"");
-    expect_bad(t, want);
+    expect_bad_at(t, want, mutated_at);
     free(t);
     t = mutate(record_text, anchor, "family", "\"nosuch\"");
-    expect_bad(t, "field 'chosen.family' names an unknown family 'nosuch'");
+    expect_bad_at(t, "field 'chosen.family' names an unknown family 'nosuch'", mutated_at);
     free(t);
     t = mutate(record_text, anchor, "covariance", "5");
     expect_bad(t, "field 'chosen.covariance' must be an object or null");
     free(t);
     t = mutate(record_text, anchor, "fixed", "[\"nosuch\"]");
-    expect_bad(t, "field 'chosen.fixed[0]' is not a parameter of");
+    expect_bad_at(t, "field 'chosen.fixed[0]' is not a parameter of", mutated_at + 1);
     free(t);
     t = mutate(record_text, anchor, "matrix", "[[1]]");
     expect_bad(t, "field 'chosen.covariance.matrix' must have");
@@ -232,7 +280,9 @@ START_TEST(test_bad_fields)
     for (size_t p = 0; p < cf->nparam; p++) {
       if (cf->param_kinds[p] != SP_PARAM_POSITIVE) continue;
       t = mutate(record_text, anchor, cf->param_names[p], "-1");
-      expect_bad(t, "field 'chosen.params' are invalid");
+      /* at the params object: the '{' after "params": in the chosen block */
+      const char *po = strstr(strstr(t, anchor), "\"params\": ") + strlen("\"params\": ");
+      expect_bad_at(t, "field 'chosen.params' are invalid", (size_t)(po - t));
       free(t);
       break;
     }
@@ -244,11 +294,23 @@ START_TEST(test_bad_fields)
     char *t = strdup(record_text);
     char *k = strstr(t, "\"created_utc\"");
     memcpy(k, "\"created_utX\"", 13);
-    expect_bad(t, "field 'created_utc' is missing");
+    /* at the object that lacks it: the top level's '{' */
+    expect_bad_at(t, "field 'created_utc' is missing", (size_t)(strchr(t, '{') - t));
     free(t);
   }
   expect_bad("{\"format\": ", "not valid JSON");
-  expect_bad("[]", "the top level must be a JSON object");
+  expect_bad_at("[]", "the top level must be a JSON object", 0);
+  expect_bad_at("\n  [1]", "the top level must be a JSON object", 3);
+  /* Keys written with an escape and with multi-byte characters before the
+   * bad value on its line: the key is matched decoded, and the column
+   * counts characters (line_col above). */
+  {
+    char *t = mutate(record_text, "\"options\"", "fixed",
+                     "{\"sh\\u00e9\u00e9\": 1, \"\u00fc\": \"2\"}");
+    const char *v = strstr(t + mutated_at, "\"2\"");
+    expect_bad_at(t, "field 'options.fixed.\u00fc' must be a number", (size_t)(v - t));
+    free(t);
+  }
 }
 END_TEST
 

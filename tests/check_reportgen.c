@@ -556,7 +556,7 @@ START_TEST(test_plot_and_report_on_the_wrong_file)
    * field or the JSON position) and a hint naming both kinds. */
   write_file(path_in("x.json"), "{\"a\": 1}\n");
   ck_assert_int_eq(cli("plot x.json"), 3);
-  ASSERT_HAS(err_text, "x.json: field 'format' is missing");
+  ASSERT_HAS(err_text, "x.json:1:1: fit record: field 'format' is missing");
   ASSERT_HAS(err_text, "hint: give a fit record");
   ASSERT_HAS(err_text, "or a run record");
   write_file(path_in("bad.json"), "{\"format\": ");

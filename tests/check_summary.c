@@ -119,20 +119,31 @@ START_TEST(test_errors)
   const char *lot[] = {"lot"};
   ck_assert_int_eq(sp_summary_build(t, lot, 1, NULL, &s, &err), SP_EDATA);
   ck_assert_ptr_null(s);
-  ck_assert_str_eq(err.msg, "s.csv: column 'lot' holds text, not numbers");
+  /* at the header cell: line 2 (after one '#' line), cell 1 */
+  ck_assert_str_eq(err.msg, "column 'lot' holds text, not numbers");
+  ck_assert_str_eq(err.file, "s.csv");
+  ck_assert_int_eq(err.line, 2);
+  ck_assert_int_eq(err.col, 1);
   ck_assert_ptr_nonnull(strstr(err.hint, "a unit in the header"));
   ck_assert_int_eq(sp_summary_build(t, NULL, 0, "d", &s, &err), SP_EDATA);
-  ck_assert_str_eq(err.msg, "s.csv: column 'd [mm]' holds numbers; --by needs a text column");
+  ck_assert_str_eq(err.msg, "column 'd [mm]' holds numbers; --by needs a text column");
+  ck_assert_int_eq(err.line, 2);
+  ck_assert_int_eq(err.col, 2);
   ck_assert_ptr_nonnull(strstr(err.hint, "a column with a unit holds measurements"));
   ck_assert_int_eq(sp_summary_build(t, NULL, 0, "batch", &s, &err), SP_EDATA);
-  ck_assert_str_eq(err.msg, "s.csv: no column named 'batch' to group by");
+  /* at the header line (no cell holds it) */
+  ck_assert_str_eq(err.msg, "no column named 'batch' in the header to group by");
+  ck_assert_int_eq(err.line, 2);
+  ck_assert_int_eq(err.col, 0);
   sp_table_free(t);
 
   /* No numeric column: the hint names the text columns and the first
    * reading that made each one text. */
   t = table("a,b\nO.5,x\n1,y\n", NULL);
   ck_assert_int_eq(sp_summary_build(t, NULL, 0, NULL, &s, &err), SP_EDATA);
-  ck_assert_str_eq(err.msg, "s.csv: no numeric column to describe");
+  ck_assert_str_eq(err.msg, "no numeric column to describe in the header");
+  ck_assert_str_eq(err.file, "s.csv");
+  ck_assert_int_eq(err.line, 1);
   ASSERT_HAS(err.hint, "the text columns are 'a' (first reading 'O.5'), 'b' (first reading 'x')");
   sp_table_free(t);
 

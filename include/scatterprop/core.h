@@ -105,6 +105,19 @@ void sp_outfile_abort(sp_outfile *f);
 sp_status sp_file_write_atomic(const char *path, const void *data, size_t n,
                                int overwrite, sp_error *err);
 
+/* Opens the input file at path for reading: a regular file of at most
+ * max_bytes bytes (0: any size).  The file is opened without blocking and
+ * checked before a byte is read, so a FIFO without a writer cannot hang
+ * the program and /dev/zero cannot fill its memory.  what names the kind
+ * of file in messages ("CSV file", "model file", "record").  Returns an
+ * owned FILE (fclose it), or NULL with err set: SP_EIO for "PATH: cannot
+ * open: REASON", a folder ("PATH: is a folder, not a WHAT") and anything
+ * but a regular file ("PATH: is not a regular file (a pipe, a device or a
+ * socket)"), SP_ELIMIT for a file larger than max_bytes ("PATH: the WHAT is
+ * larger than MAX bytes (it has N)"); each with a hint. */
+FILE *sp_file_open_input(const char *path, const char *what, uint64_t max_bytes,
+                         sp_error *err);
+
 /* SHA-256 (libmd) of a file, as 64 lower-case hex digits and a NUL, and
  * its size in bytes.  size may be NULL. */
 #define SP_SHA256_HEX_LEN 65

@@ -30,6 +30,22 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
       free(json);
       sp_summary_set_free(set);
     }
+    /* Grouped by the first text column, as summary --by does (the groups'
+     * hash table and labels). */
+    for (size_t i = 0; i < t->ncols; i++) {
+      if (t->cols[i].kind != SP_COLUMN_TEXT) continue;
+      sp_error_clear(&err);
+      set = NULL;
+      sp_status gs = sp_summary_build(t, NULL, 0, t->cols[i].name, &set, &err);
+      if (gs == SP_OK) {
+        char *json = sp_summary_json(set, &err);
+        free(json);
+        sp_summary_set_free(set);
+      } else if (err.msg[0] == '\0') {
+        __builtin_trap(); /* a failure without a message */
+      }
+      break;
+    }
     sp_table_free(t);
   } else if (err.msg[0] == '\0') {
     __builtin_trap(); /* a failure without a message */
