@@ -13,6 +13,7 @@
 #include "fit_internal.h"
 
 #include "scatterprop/stats.h"
+#include "scatterprop/summary.h"
 
 #include <float.h>
 #include <math.h>
@@ -850,106 +851,33 @@ void sp_fit_grouped_clear(sp_fit_grouped *g)
   memset(g, 0, sizeof *g);
 }
 
-static char *dup_text(const char *s)
-{
-  size_t n = strlen(s) + 1;
-  char *d = malloc(n);
-  if (d) memcpy(d, s, n);
-  return d;
-}
-
-/* FNV-1a, 64-bit, with its published offset basis and prime. */
-static size_t label_hash(const char *s)
-{
-  uint64_t h = 1469598103934665603ull;
-  for (; *s; s++) {
-    h ^= (unsigned char)*s;
-    h *= 1099511628211ull;
-  }
-  return (size_t)h;
-}
-
 sp_status sp_fit_run_grouped(const double *x, const char *const *group, size_t n,
                              const sp_fit_options *opt, sp_fit_grouped *out,
                              sp_error *err)
 {
   memset(out, 0, sizeof *out);
   out->pooled.chosen = -1;
+  /* The lots in order of first appearance, each with its rows in file
+   * order, in time linear in the rows (sp_group_labels). */
+  sp_group *lots = NULL;
+  size_t nlots = 0;
+  sp_status st = sp_group_labels(group, n, 1, &lots, &nlots, err);
+  if (st != SP_OK) return st;
   double *vals = malloc((n ? n : 1) * sizeof *vals);
-  size_t *gi = malloc((n ? n : 1) * sizeof *gi);
-  if (!vals || !gi) {
-    free(vals);
-    free(gi);
-    return sp_fit_fail_nomem(err);
+  out->groups = calloc(nlots ? nlots : 1, sizeof *out->groups);
+  if (!vals || !out->groups) {
+    st = sp_fit_fail_nomem(err);
+    goto done;
   }
-  sp_status st = SP_OK;
-  size_t cap = 0;
-  /* Each row's lot is found through a hash table of the labels (FNV-1a,
-   * open addressing, at most half full; Fowler, Noll & Vo,
-   * http://www.isthe.com/chongo/tech/comp/fnv/), and the values of the lots
-   * are gathered by a counting pass, so grouping is linear in the rows even
-   * when every row is its own lot (it was a search of the lot list per row
-   * and a pass over all rows per lot: 64 000 one-row lots took 21 s).  Lots
-   * keep the order in which their label first appears. */
-  size_t hcap = 64, *slot = calloc(hcap, sizeof *slot); /* lot index + 1, 0 when empty */
-  size_t *start = NULL;
-  if (!slot) { st = sp_fit_fail_nomem(err); goto done; }
-  for (size_t i = 0; i < n; i++) {
-    gi[i] = (size_t)-1;
-    if (!group[i] || !group[i][0]) continue;
-    if (2 * (out->ngroups + 1) > hcap) {
-      size_t ncap = 2 * hcap;
-      size_t *ns = calloc(ncap, sizeof *ns);
-      if (!ns) { st = sp_fit_fail_nomem(err); goto done; }
-      for (size_t k = 0; k < out->ngroups; k++) {
-        size_t j = label_hash(out->groups[k].label) & (ncap - 1);
-        while (ns[j]) j = (j + 1) & (ncap - 1);
-        ns[j] = k + 1;
-      }
-      free(slot);
-      slot = ns;
-      hcap = ncap;
-    }
-    size_t j = label_hash(group[i]) & (hcap - 1);
-    while (slot[j] && strcmp(out->groups[slot[j] - 1].label, group[i]) != 0)
-      j = (j + 1) & (hcap - 1);
-    size_t g = slot[j] ? slot[j] - 1 : out->ngroups;
-    if (g == out->ngroups) {
-      if (out->ngroups == cap) {
-        size_t nc = cap ? 2 * cap : 8;
-        sp_fit_group *ng = realloc(out->groups, nc * sizeof *ng);
-        if (!ng) { st = sp_fit_fail_nomem(err); goto done; }
-        out->groups = ng;
-        cap = nc;
-      }
-      sp_fit_group *G = &out->groups[out->ngroups];
-      memset(G, 0, sizeof *G);
-      G->fit.chosen = -1;
-      G->label = dup_text(group[i]);
-      if (!G->label) { st = sp_fit_fail_nomem(err); goto done; }
-      out->ngroups++;
-      slot[j] = out->ngroups;
-    }
-    gi[i] = g;
-  }
-  /* start[g]..start[g+1]: lot g's rows, in file order, in order[]. */
-  start = calloc(out->ngroups + 1, sizeof *start);
-  size_t *order = start ? malloc((n ? n : 1) * sizeof *order) : NULL;
-  if (!order) { st = sp_fit_fail_nomem(err); goto done; }
-  for (size_t i = 0; i < n; i++)
-    if (gi[i] != (size_t)-1) start[gi[i] + 1]++;
-  for (size_t g = 0; g < out->ngroups; g++) start[g + 1] += start[g];
-  {
-    size_t *fill = slot; /* reused: hcap > ngroups */
-    memset(fill, 0, out->ngroups * sizeof *fill);
-    for (size_t i = 0; i < n; i++)
-      if (gi[i] != (size_t)-1) order[start[gi[i]] + fill[gi[i]]++] = i;
-  }
-  for (size_t g = 0; g < out->ngroups; g++) {
+  for (size_t g = 0; g < nlots; g++) {
     sp_fit_group *G = &out->groups[g];
+    G->fit.chosen = -1;
+    G->label = lots[g].label; /* moved: lots[g] no longer owns it */
+    lots[g].label = NULL;
+    out->ngroups++;
     size_t m = 0;
-    for (size_t k = start[g]; k < start[g + 1]; k++) {
-      size_t i = order[k];
+    for (size_t k = 0; k < lots[g].n; k++) {
+      size_t i = lots[g].rows[k];
       if (isnan(x[i])) G->nmissing++;
       else vals[m++] = x[i];
     }
@@ -959,12 +887,10 @@ sp_status sp_fit_run_grouped(const double *x, const char *const *group, size_t n
     if (G->status == SP_ENOMEM) {
       *err = e;
       st = SP_ENOMEM;
-      free(order);
       goto done;
     }
     if (G->status != SP_OK) snprintf(G->message, sizeof G->message, "%.300s", e.msg);
   }
-  free(order);
   {
     size_t m = 0;
     for (size_t i = 0; i < n; i++) {
@@ -975,9 +901,7 @@ sp_status sp_fit_run_grouped(const double *x, const char *const *group, size_t n
   }
 done:
   free(vals);
-  free(gi);
-  free(slot);
-  free(start);
+  sp_groups_free(lots, nlots);
   if (st != SP_OK) sp_fit_grouped_clear(out);
   return st;
 }

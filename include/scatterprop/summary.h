@@ -27,6 +27,11 @@ typedef struct {
 sp_status sp_table_groups(const sp_table *t, const char *by, sp_group **groups,
                           size_t *ngroups, sp_error *err);
 void sp_groups_free(sp_group *groups, size_t ngroups);
+/* Returns owned (as sp_table_groups): rows 0..n) grouped by labels[r],
+ * in time linear in n.  A NULL label counts as "", and with skip_empty
+ * rows whose label is "" belong to no group. */
+sp_status sp_group_labels(const char *const *labels, size_t n, int skip_empty,
+                          sp_group **groups, size_t *ngroups, sp_error *err);
 
 /* One summary line: a column, over a group of rows or all of them. */
 typedef struct {
