@@ -842,7 +842,7 @@ sp_status sp_fit_run(const double *x, size_t n, const sp_fit_options *opt,
 void sp_fit_grouped_clear(sp_fit_grouped *g)
 {
   if (!g) return;
-  for (size_t i = 0; i < g->ngroups; i++) {
+  for (size_t i = 0; g->groups && i < g->ngroups; i++) {
     free(g->groups[i].label);
     sp_fit_result_clear(&g->groups[i].fit);
   }
