@@ -82,6 +82,17 @@ static int skip_value(cursor *c)
   return 1;
 }
 
+/* Past one element of an array or member of an object (its value, the
+ * comma after it and the blanks around): 0 when the value is malformed. */
+static int skip_item(cursor *c)
+{
+  if (!skip_value(c)) return 0;
+  skip_ws(c);
+  if (c->p < c->end && *c->p == ',') adv(c);
+  skip_ws(c);
+  return 1;
+}
+
 static unsigned hex4(const char *s)
 {
   unsigned v = 0;
@@ -186,10 +197,7 @@ int sp_json_locate(const char *text, size_t len, const char *path, long *line, l
           found = 1;
           break;
         }
-        if (!skip_value(&c)) return 0;
-        skip_ws(&c);
-        if (c.p < c.end && *c.p == ',') adv(&c);
-        skip_ws(&c);
+        if (!skip_item(&c)) return 0;
       }
     } else {
       size_t n = strcspn(s, ".[");
@@ -208,10 +216,7 @@ int sp_json_locate(const char *text, size_t len, const char *path, long *line, l
           found = 1;
           break;
         }
-        if (!skip_value(&c)) return 0;
-        skip_ws(&c);
-        if (c.p < c.end && *c.p == ',') adv(&c);
-        skip_ws(&c);
+        if (!skip_item(&c)) return 0;
       }
       s += n;
     }
